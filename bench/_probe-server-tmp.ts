@@ -1,0 +1,28 @@
+import { readFileSync } from 'node:fs';
+import { startTestServer } from '../tests/e2e/support/test-server';
+import { initNodeBackend } from '../shared/node/tf-node';
+import { createEngine } from '../src/app/workers/run-engines';
+import { trainingSetOf } from '../src/app/runs/run-trainer-settings';
+const s = await startTestServer();
+const post = async (path: string, token: string | null, body: unknown, json = true) => {
+  const r = await fetch(`${s.url}/api${path}`, { method: 'POST', headers: { ...(token ? { Authorization: `Bearer ${token}` } : {}), ...(json ? { 'Content-Type': 'application/json' } : {}) }, body: json ? JSON.stringify(body) : body as FormData });
+  return r.json() as Promise<any>;
+};
+const { token } = await post('/auth/signup', null, { email: 'a@example.org', password: 'long-enough-1', displayName: 'A' });
+const bench = await post('/benches', token, { name: 'B' });
+const form = new FormData();
+form.set('name', 'S'); form.set('options', JSON.stringify({ mergeDuplicates: true }));
+form.set('file', new Blob([readFileSync('datasets-demo/syllable-grammar.tsv')]), 'syllable-grammar.tsv');
+const corpus = await post(`/benches/${bench.id}/corpora`, token, form, false);
+const run = await post(`/benches/${bench.id}/runs`, token, { family: 'ssm', name: 'r', corpusId: corpus.id, settings: { model: { stateSize: 4, generativeFlow: [{ kind: 'diag' }], inferenceFlow: [{ kind: 'diag' }], flowHidden: 8, observationHidden: 0, embeddingSize: 8, encoderSize: 16, proposalHidden: 8 }, training: { steps: 100, batchSize: 16, samples: 2, learningRate: 0.02, clipNorm: 5, evalEvery: 50 } } });
+console.log('run alphabet', JSON.stringify(run.alphabet), 'split', JSON.stringify(run.settings.split));
+const ts = await (await fetch(`${s.url}/api/benches/${bench.id}/corpora/${corpus.id}/training-set`, { headers: { Authorization: `Bearer ${token}` } })).json() as any;
+console.log('corpus alphabet', JSON.stringify(ts.alphabet), ts.words.length, ts.words.slice(0, 5), ts.counts.slice(0, 5), ts.splits.slice(0, 5));
+const set = trainingSetOf(run, ts);
+console.log('train', set.train.length, 'val', set.validation.length, set.train.slice(0, 3));
+await initNodeBackend('wasm');
+const e = createEngine({ family: 'ssm', stateSize: 4, generativeFlow: ['diag'], inferenceFlow: ['diag'], flowHidden: 8, encoderSize: 16, embeddingSize: 8, proposalHidden: 8, observationHidden: 0, samples: 2, batchSize: 16, steps: 100, learningRate: 0.02, clipNorm: 5, warmupSteps: 0, regime: 'token', seed: 1, order: 3, evalEvery: 50 }, set, null);
+const f = []; for (let i = 0; i < 60; i++) f.push(e.step().bitsPerChar.toFixed(2));
+console.log(f.join(' '));
+await s.stop();
+process.exit(0);

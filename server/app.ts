@@ -1,0 +1,86 @@
+/**
+ * Builds the Express app from a config and its services; does not listen (see start.ts / main.ts).
+ * Order: security headers → /api (JSON body, ORM request context, module routers, JSON 404) →
+ * the built Angular app with an index.html fallback → the one error middleware.
+ */
+import { RequestContext } from '@mikro-orm/core';
+import express, { Router, type Express } from 'express';
+import { existsSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import type { AppContext, AppDeps } from './app-context';
+import { systemClock } from './clock';
+import type { Config } from './config';
+import { requireAuth } from './middleware/auth';
+import { loadBench } from './middleware/bench-access';
+import { apiNotFound, errorHandler } from './middleware/error-handler';
+import { securityHeaders } from './middleware/security-headers';
+import { serverModules } from './modules/registry';
+import { ErrorCode } from '../shared/api/errors';
+import { HttpError } from './http-error';
+import './request-state';
+
+export function createApp(config: Config, deps: AppDeps): Express {
+  const ctx: AppContext = {
+    config,
+    orm: deps.orm,
+    mailer: deps.mailer,
+    mailbox: deps.mailbox ?? null,
+    clock: deps.clock ?? systemClock,
+    logError: deps.logError ?? ((error) => console.error(error)),
+  };
+  const app = express();
+  app.disable('x-powered-by');
+  if (config.trustProxyHops > 0) app.set('trust proxy', config.trustProxyHops);
+  app.use(securityHeaders({ https: config.publicUrl.startsWith('https:') }));
+
+  const api = Router();
+  api.use(express.json({ limit: config.jsonBodyLimitBytes }));
+  api.use((_req, _res, next) => RequestContext.create(ctx.orm.em, next));
+  api.use((_req, res, next) => {
+    res.set('Cache-Control', 'no-store');
+    next();
+  });
+
+  const signedIn = requireAuth(ctx);
+  const bench = Router({ mergeParams: true });
+  for (const module of serverModules) {
+    for (const mount of module.benchRoutes ?? []) bench.use(mount.path, mount.router(ctx));
+  }
+  api.use('/benches/:benchId', signedIn, loadBench(ctx), bench);
+  for (const module of serverModules) {
+    for (const mount of module.routes ?? []) {
+      if (mount.signedIn) api.use(mount.path, signedIn, mount.router(ctx));
+      else api.use(mount.path, mount.router(ctx));
+    }
+  }
+  api.use(apiNotFound);
+  app.use('/api', api);
+
+  serveClient(app, resolve(config.staticDir));
+  app.use((req, _res, next) => {
+    next(new HttpError(404, ErrorCode.NotFound, `Nothing here answers ${req.method} ${req.path}.`));
+  });
+  app.use(errorHandler(ctx.logError));
+  return app;
+}
+
+/** Serves the built Angular app; every other GET that is not a file gets index.html (client routing). */
+function serveClient(app: Express, dir: string): void {
+  const index = join(dir, 'index.html');
+  if (existsSync(index)) {
+    app.use(express.static(dir, { index: false, maxAge: '1h' }));
+    app.get(['/', '/*splat'], (req, res, next) => {
+      // A missing file (a name with an extension) is a 404, not the app page: a wrong wasm path should fail loudly.
+      if (/\.[A-Za-z0-9]+$/.test(req.path)) {
+        next();
+        return;
+      }
+      res.set('Cache-Control', 'no-cache');
+      res.sendFile(index);
+    });
+  } else {
+    app.get(['/', '/*splat'], (_req, res) => {
+      res.status(404).type('text/plain').send('The web app is not built yet: run `npm run build`, then reload.');
+    });
+  }
+}

@@ -1,0 +1,14 @@
+/**
+ * The ordered list of migrations the Migrator runs (explicit, so it works the same under tsx, vitest and
+ * a bundle). Append new ones at the end; never edit one that has shipped.
+ */
+import type { MigrationObject } from '@mikro-orm/core';
+import { Migration20261202000000Foundation } from '../migrations/Migration20261202000000_foundation';
+import { Migration20261202024511Corpora } from '../migrations/Migration20261202024511_corpora';
+import { Migration20261202024709Runs } from '../migrations/Migration20261202024709_runs';
+
+export const migrationsList: MigrationObject[] = [
+  { name: 'Migration20261202000000_foundation', class: Migration20261202000000Foundation },
+  { name: 'Migration20261202024511_corpora', class: Migration20261202024511Corpora },
+  { name: 'Migration20261202024709_runs', class: Migration20261202024709Runs },
+];

@@ -1,0 +1,47 @@
+/** Opens the SQLite database through MikroORM and brings its schema up to date with the Migrator. */
+import { BetterSqliteDriver } from '@mikro-orm/better-sqlite';
+import { MikroORM, type Options } from '@mikro-orm/core';
+import { Migrator } from '@mikro-orm/migrations';
+import { mkdirSync } from 'node:fs';
+import { dirname, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { entities } from './entities';
+import { migrationsList } from './migrations';
+
+export type Orm = MikroORM<BetterSqliteDriver>;
+
+const migrationsDir = resolve(dirname(fileURLToPath(import.meta.url)), '../migrations');
+
+export function ormOptions(databasePath: string): Options<BetterSqliteDriver> {
+  return {
+    driver: BetterSqliteDriver,
+    dbName: databasePath,
+    entities,
+    extensions: [Migrator],
+    discovery: { requireEntitiesArray: true },
+    allowGlobalContext: false,
+    forceUtcTimezone: true,
+    debug: false,
+    migrations: {
+      path: migrationsDir,
+      pathTs: migrationsDir,
+      migrationsList,
+      emit: 'ts',
+      transactional: true,
+      allOrNothing: true,
+      snapshot: false,
+      silent: true,
+      fileName: (timestamp: string, name?: string) => `Migration${timestamp}${name ? `_${name}` : ''}`,
+    },
+  };
+}
+
+/** Opens (creating the folder if needed) and migrates the database. */
+export async function openDatabase(databasePath: string, options: { migrate?: boolean } = {}): Promise<Orm> {
+  if (databasePath !== ':memory:') mkdirSync(dirname(resolve(databasePath)), { recursive: true });
+  const orm = await MikroORM.init<BetterSqliteDriver>(ormOptions(databasePath));
+  if (options.migrate !== false) {
+    await orm.getMigrator().up();
+  }
+  return orm;
+}

@@ -1,0 +1,29 @@
+import { EntitySchema, OptionalProps } from '@mikro-orm/core';
+import type { SplitName } from '../../../shared/data/split';
+import { Corpus } from './corpus.entity';
+
+/** One word type of a corpus with its count, its length in characters and its split. */
+export class CorpusWord {
+  [OptionalProps]?: 'id';
+  id!: number;
+  corpus!: Corpus;
+  word!: string;
+  count!: number;
+  split!: SplitName;
+  length!: number;
+}
+
+export const CorpusWordSchema = new EntitySchema<CorpusWord>({
+  class: CorpusWord,
+  tableName: 'corpus_words',
+  indexes: [{ properties: ['corpus', 'split'] }, { properties: ['corpus', 'count'] }],
+  uniques: [{ properties: ['corpus', 'word'] }],
+  properties: {
+    id: { type: 'integer', primary: true, autoincrement: true },
+    corpus: { kind: 'm:1', entity: () => Corpus, deleteRule: 'cascade' },
+    word: { type: 'string', length: 1000 },
+    count: { type: 'integer' },
+    split: { type: 'string', length: 12 },
+    length: { type: 'integer' },
+  },
+});

@@ -1,0 +1,54 @@
+/**
+ * The registration point for server modules. A module lists its routers here:
+ * - `routes` mount under `/api/<path>`, optionally behind `requireAuth`;
+ * - `benchRoutes` mount under `/api/benches/:benchId/<path>`, behind `requireAuth` and the bench loader,
+ *   so their handlers can call `currentBench(req)` and guard themselves with `requireRole(...)`.
+ * See DEVELOPERS.md, "Adding a server module".
+ */
+import type { Router } from 'express';
+import type { AppContext } from '../app-context';
+import { activityRoutes } from './activity/activity.routes';
+import { adminRoutes } from './admin/admin.routes';
+import { authRoutes } from './auth/auth.routes';
+import { corporaRoutes } from './corpora/corpora.routes';
+import { trainingSetRoutes } from './corpora/training-set.routes';
+import { benchListRoutes, benchRoutes } from './benches/benches.routes';
+import { memberRoutes } from './benches/members.routes';
+import { invitationLinkRoutes } from './invitations/invitation-links.routes';
+import { invitationRoutes } from './invitations/invitations.routes';
+import { metaRoutes } from './meta/meta.routes';
+import { runRoutes } from './runs/runs.routes';
+
+export interface ServerModule {
+  name: string;
+  routes?: { path: string; signedIn: boolean; router: (ctx: AppContext) => Router }[];
+  benchRoutes?: { path: string; router: (ctx: AppContext) => Router }[];
+}
+
+export const serverModules: ServerModule[] = [
+  { name: 'meta', routes: [{ path: '/', signedIn: false, router: metaRoutes }] },
+  { name: 'auth', routes: [{ path: '/auth', signedIn: false, router: authRoutes }] },
+  {
+    name: 'benches',
+    routes: [{ path: '/benches', signedIn: true, router: benchListRoutes }],
+    benchRoutes: [
+      { path: '/', router: benchRoutes },
+      { path: '/members', router: memberRoutes },
+    ],
+  },
+  {
+    name: 'invitations',
+    routes: [{ path: '/invitations', signedIn: false, router: invitationLinkRoutes }],
+    benchRoutes: [{ path: '/invitations', router: invitationRoutes }],
+  },
+  { name: 'activity', benchRoutes: [{ path: '/activity', router: activityRoutes }] },
+  { name: 'corpora', benchRoutes: [{ path: '/corpora', router: corporaRoutes }] },
+  {
+    name: 'runs',
+    benchRoutes: [
+      { path: '/runs', router: runRoutes },
+      { path: '/corpora', router: trainingSetRoutes },
+    ],
+  },
+  { name: 'admin', routes: [{ path: '/admin', signedIn: true, router: adminRoutes }] },
+];

@@ -1,0 +1,56 @@
+import { EntitySchema, OptionalProps } from '@mikro-orm/core';
+import { randomUUID } from 'node:crypto';
+import type { RunFamily, RunSettings, RunStatus, RunSummary } from '../../../shared/api/runs';
+import { Bench } from '../benches/bench.entity';
+import { Corpus } from '../corpora/corpus.entity';
+import { User } from '../users/user.entity';
+
+/**
+ * A training run of one model on one corpus. Settings are stored as validated (with the split that
+ * applies); the alphabet is copied from the corpus so checkpoints can be checked even after the corpus
+ * is gone (the corpus link is then null). `bestBoundBitsPerChar` mirrors the summary's best validation
+ * bound so the list can sort by it.
+ */
+export class Run {
+  [OptionalProps]?: 'id' | 'statusReason' | 'summary' | 'stepsDone' | 'archived' | 'bestBoundBitsPerChar' | 'createdAt' | 'updatedAt';
+  id: string = randomUUID();
+  bench!: Bench;
+  corpus!: Corpus | null;
+  createdBy!: User | null;
+  name!: string;
+  family!: RunFamily;
+  settings!: RunSettings;
+  alphabet!: string[];
+  status!: RunStatus;
+  statusReason: string | null = null;
+  summary: RunSummary = {};
+  stepsDone = 0;
+  archived = false;
+  bestBoundBitsPerChar: number | null = null;
+  createdAt: Date = new Date();
+  updatedAt: Date = new Date();
+}
+
+export const RunSchema = new EntitySchema<Run>({
+  class: Run,
+  tableName: 'runs',
+  indexes: [{ properties: ['bench', 'createdAt'] }, { properties: ['bench', 'status'] }],
+  properties: {
+    id: { type: 'uuid', primary: true },
+    bench: { kind: 'm:1', entity: () => Bench, deleteRule: 'cascade' },
+    corpus: { kind: 'm:1', entity: () => Corpus, nullable: true, deleteRule: 'set null' },
+    createdBy: { kind: 'm:1', entity: () => User, nullable: true, deleteRule: 'set null' },
+    name: { type: 'string', length: 120 },
+    family: { type: 'string', length: 8 },
+    settings: { type: 'json' },
+    alphabet: { type: 'json' },
+    status: { type: 'string', length: 16 },
+    statusReason: { type: 'text', nullable: true },
+    summary: { type: 'json' },
+    stepsDone: { type: 'integer', default: 0 },
+    archived: { type: 'boolean', default: false },
+    bestBoundBitsPerChar: { type: 'double', nullable: true },
+    createdAt: { type: 'datetime' },
+    updatedAt: { type: 'datetime', onUpdate: () => new Date() },
+  },
+});

@@ -1,0 +1,90 @@
+/**
+ * Starts everything: database + migrations, demo seed, the local SMTP stand-in, the HTTP server.
+ * Port 0 (HTTP or SMTP) picks a free port; end-to-end tests rely on that.
+ */
+import { createServer, type Server } from 'node:http';
+import type { AddressInfo } from 'node:net';
+import { createApp } from './app';
+import { systemClock, type Clock } from './clock';
+import type { Config } from './config';
+import { openDatabase, type Orm } from './db/orm';
+import { startMailCapture, type MailCapture } from './modules/mail/mail-capture-server';
+import { Mailbox } from './modules/mail/mailbox';
+import { smtpMailer, type Mailer } from './modules/mail/mailer';
+import { seedDemoIfEmpty } from './seeders/demo-seed';
+
+export interface RunningServer {
+  /** Base URL of the running server, e.g. `http://127.0.0.1:43117`. */
+  url: string;
+  port: number;
+  /** The configuration in effect (ports and PUBLIC_URL filled in). */
+  config: Config;
+  /** Captured mail, or null when MAIL_CAPTURE is off. */
+  mailbox: Mailbox | null;
+  orm: Orm;
+  /** Whether this start created the demo data. */
+  seeded: boolean;
+  close(): Promise<void>;
+}
+
+export async function startServer(input: Config, options: { clock?: Clock } = {}): Promise<RunningServer> {
+  const clock = options.clock ?? systemClock;
+  let config: Config = { ...input, smtp: { ...input.smtp } };
+  const cleanups: (() => Promise<void> | void)[] = [];
+  const close = async () => {
+    for (const cleanup of cleanups.reverse()) await cleanup();
+    cleanups.length = 0;
+  };
+
+  try {
+    const orm = await openDatabase(config.databasePath);
+    cleanups.push(() => orm.close(true));
+    const seeded = config.seedDemo ? await seedDemoIfEmpty(orm, config, clock) : false;
+
+    let mailbox: Mailbox | null = null;
+    let capture: MailCapture | null = null;
+    if (config.mailCapture) {
+      mailbox = new Mailbox({ file: config.mailCaptureFile });
+      capture = await startMailCapture({ host: config.smtp.host, port: config.smtp.port, mailbox });
+      cleanups.push(() => capture!.close());
+      config = { ...config, smtp: { ...config.smtp, port: capture.port } };
+    }
+    const mailer: Mailer = smtpMailer({
+      host: config.smtp.host,
+      port: config.smtp.port,
+      secure: config.smtp.secure,
+      user: config.smtp.user,
+      pass: config.smtp.pass,
+      from: config.mailFrom,
+      ignoreTLS: capture !== null,
+    });
+    cleanups.push(() => mailer.close());
+
+    const server: Server = createServer();
+    await new Promise<void>((done, fail) => {
+      server.once('error', fail);
+      server.listen(config.port, config.host, () => {
+        server.off('error', fail);
+        done();
+      });
+    });
+    cleanups.push(
+      () =>
+        new Promise<void>((done) => {
+          server.close(() => done());
+          server.closeAllConnections();
+        }),
+    );
+    const port = (server.address() as AddressInfo).port;
+    const hostForUrl = config.host === '0.0.0.0' || config.host === '::' ? '127.0.0.1' : config.host;
+    const url = `http://${hostForUrl.includes(':') ? `[${hostForUrl}]` : hostForUrl}:${port}`;
+    if (!config.publicUrlSet && config.port === 0) config = { ...config, publicUrl: url };
+    config = { ...config, port };
+
+    server.on('request', createApp(config, { orm, mailer, mailbox, clock }));
+    return { url, port, config, mailbox, orm, seeded, close };
+  } catch (error) {
+    await close();
+    throw error;
+  }
+}

@@ -1,0 +1,57 @@
+/**
+ * Every bench-scoped route, for the access test in server/middleware/bench-access.spec.ts:
+ * a non-member gets 404, roles below `minRole` get 403, nobody signed out gets in.
+ * Modules that add routes under /api/benches/:benchId append their rows here. Ids in paths may be
+ * made up: the loader and `requireRole` must refuse before the route looks anything up.
+ */
+import type { Role } from '../../shared/api/types';
+
+export interface BenchRouteCase {
+  method: 'get' | 'post' | 'patch' | 'put' | 'delete';
+  /** Path after /api/benches/:benchId ('' for the bench itself). */
+  path: (ids: { someUserId: string }) => string;
+  minRole: Role;
+  /** A valid body, so a refusal is about access and not about validation. */
+  body?: unknown;
+  /** For GET rows: the status an allowed role gets (default 200; 404 when the path uses a made-up id). */
+  allowedStatus?: number;
+}
+
+const madeUpId = '3f1c2a4e-8b7d-4c6a-9e2f-1a2b3c4d5e6f';
+
+export const benchRouteTable: BenchRouteCase[] = [
+  { method: 'get', path: () => '', minRole: 'viewer' },
+  { method: 'patch', path: () => '', minRole: 'owner', body: { name: 'Renamed' } },
+  { method: 'delete', path: () => '', minRole: 'owner' },
+  { method: 'get', path: () => '/members', minRole: 'viewer' },
+  { method: 'patch', path: (ids) => `/members/${ids.someUserId}`, minRole: 'coach', body: { role: 'viewer' } },
+  // Anyone may remove themselves; removing someone else needs coach (checked in the route).
+  { method: 'delete', path: (ids) => `/members/${ids.someUserId}`, minRole: 'coach' },
+  { method: 'get', path: () => '/invitations', minRole: 'coach' },
+  { method: 'post', path: () => '/invitations', minRole: 'coach', body: { email: 'new.person@example.org', role: 'member' } },
+  { method: 'delete', path: () => `/invitations/${madeUpId}`, minRole: 'coach' },
+  { method: 'get', path: () => '/activity', minRole: 'coach' },
+];
+
+// Corpora (server/modules/corpora). Made-up corpus ids: the role check comes before the lookup.
+benchRouteTable.push(
+  { method: 'get', path: () => '/corpora', minRole: 'viewer' },
+  { method: 'post', path: () => '/corpora/preview', minRole: 'member' },
+  { method: 'post', path: () => '/corpora', minRole: 'member' },
+  { method: 'patch', path: () => `/corpora/${madeUpId}`, minRole: 'member', body: { name: 'Renamed' } },
+  { method: 'delete', path: () => `/corpora/${madeUpId}`, minRole: 'member' },
+);
+
+// Runs (server/modules/runs). Reads of one run (GET /runs/:runId, its metrics, checkpoints and files) need a
+// real run, so run-status.routes.spec.ts checks them; every write is here with a made-up run id.
+benchRouteTable.push(
+  { method: 'get', path: () => '/runs', minRole: 'viewer' },
+  { method: 'post', path: () => '/runs', minRole: 'member', body: { family: 'ngram', name: 'Trigram', corpusId: madeUpId, settings: { model: { order: 3 } } } },
+  { method: 'post', path: () => '/runs/import', minRole: 'member' },
+  { method: 'patch', path: () => `/runs/${madeUpId}`, minRole: 'member', body: { status: 'training' } },
+  { method: 'post', path: () => `/runs/${madeUpId}/archive`, minRole: 'member', body: { archived: true } },
+  { method: 'delete', path: () => `/runs/${madeUpId}`, minRole: 'member' },
+  { method: 'post', path: () => `/runs/${madeUpId}/metrics`, minRole: 'member', body: { points: [{ series: 'train_bound', step: 1, value: -2 }] } },
+  { method: 'delete', path: () => `/runs/${madeUpId}/metrics?afterStep=0`, minRole: 'member' },
+  { method: 'post', path: () => `/runs/${madeUpId}/checkpoints`, minRole: 'member' },
+);

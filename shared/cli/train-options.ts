@@ -1,0 +1,158 @@
+/** Command-line options of `npm run train` (every run setting), parsed with node:util's parseArgs. */
+import { parseArgs } from 'node:util';
+import { validateFlowSpec, type FlowSpec } from '../model/flows/flow';
+
+export type ModelKind = 'ssm' | 'gru' | 'ngram';
+
+export interface TrainOptions {
+  corpus: string;
+  model: ModelKind;
+  outDir: string;
+  steps: number;
+  batchSize: number;
+  regime: 'token' | 'type';
+  learningRate: number;
+  clipNorm: number;
+  samples: number;
+  warmupSteps: number;
+  stateSize: number;
+  generativeFlow: FlowSpec[];
+  inferenceFlow: FlowSpec[];
+  flowHidden: number;
+  observationHidden: number;
+  embeddingSize: number;
+  encoderSize: number;
+  proposalHidden: number;
+  order: number;
+  discount: number | null;
+  seed: number;
+  splitSeed: number;
+  shares: { train: number; validation: number; test: number };
+  evalEvery: number;
+  evalK: number;
+  checkpointEvery: number;
+  backend: 'wasm' | 'cpu';
+  resume: string | null;
+  keepCase: boolean;
+  allowedChars: string | null;
+  quiet: boolean;
+}
+
+export const TRAIN_HELP = `Train a model on a word corpus (headless; the same model code as the browser).
+
+Usage: npm run train -- --corpus <file> [options]
+
+Corpus
+  --corpus <file>            .txt (one word a line) or .tsv/.csv (word, count)     (required)
+  --keep-case                do not lower-case words
+  --allowed-chars <chars>    drop words with characters outside this list
+  --split <a,b,c>            train,validation,test shares                           (0.8,0.1,0.1)
+  --split-seed <n>           seed of the deterministic split                        (1)
+Model
+  --model ssm|gru|ngram      stochastic state-space model, GRU baseline, KN n-gram  (ssm)
+  --state-size <d>           state (and noise) size; also the GRU's state size      (8)
+  --gen-flow <list>          generative flow layers, e.g. coupling,coupling,diag    (coupling,coupling,diag)
+  --inf-flow <list>          inference flow layers (shift, diag, tril, coupling)    (diag)
+  --flow-hidden <n>          width of the flows' conditioning networks               (32)
+  --obs-hidden <n>           observation MLP width, 0 = linear                       (0)
+  --embedding <n>            character embedding size (inference network / GRU)      (16)
+  --encoder <n>              backward GRU width of the inference network            (64)
+  --proposal-hidden <n>      proposal MLP width                                      (32)
+  --order <n>                n-gram order 1-6                                        (3)
+  --discount <D>             fixed KN discount in (0,1]; default: modified KN
+Training
+  --steps <n>                optimisation steps                                      (1000)
+  --batch-size <n>           words per batch                                         (64)
+  --regime token|type        sample words by count or each type equally             (token)
+  --learning-rate <x>        Adam step size                                          (0.01)
+  --clip-norm <x>            global gradient-norm clipping, 0 = off                  (5)
+  -k, --samples <K>          importance samples per word (IWAE bound)                (8)
+  --warmup-steps <n>         warm-up of the prior/posterior terms (not a bound meanwhile) (0)
+  --seed <n>                 seed of weights, batches and noise                      (1)
+  --eval-every <n>           validation bound every n steps, 0 = only at the end     (200)
+  --eval-k <K>               K of the validation bound                               (64)
+  --checkpoint-every <n>     also save the checkpoint every n steps, 0 = at the end  (0)
+  --resume <checkpoint>      continue a run from its checkpoint (same settings)
+  --backend wasm|cpu         TF.js backend                                           (wasm)
+Output
+  --out <dir>                folder for checkpoint.nwck and metrics.json             (runs/<model>-<time>)
+  --quiet                    no progress bar
+  -h, --help                 this text
+`;
+
+const flowList = (text: string, what: string): FlowSpec[] => {
+  const spec = text.split(',').map((s) => ({ kind: s.trim() })) as unknown[];
+  validateFlowSpec(spec, what);
+  return spec;
+};
+
+function num(text: string | undefined, name: string, fallback: number, check: (n: number) => boolean, rule: string): number {
+  if (text === undefined) return fallback;
+  const n = Number(text);
+  if (text.trim() === '' || !Number.isFinite(n) || !check(n)) throw new Error(`--${name} must be ${rule} (got "${text}").`);
+  return n;
+}
+const whole = (min: number) => (n: number) => Number.isInteger(n) && n >= min;
+
+/** Parses argv (without node and script). Returns null when help was asked for. */
+export function parseTrainArgs(argv: string[]): TrainOptions | null {
+  const { values: v } = parseArgs({
+    args: argv, allowPositionals: false, strict: true,
+    options: {
+      corpus: { type: 'string' }, model: { type: 'string' }, out: { type: 'string' }, steps: { type: 'string' },
+      'batch-size': { type: 'string' }, regime: { type: 'string' }, 'learning-rate': { type: 'string' },
+      'clip-norm': { type: 'string' }, samples: { type: 'string', short: 'k' }, 'warmup-steps': { type: 'string' },
+      'state-size': { type: 'string' }, 'gen-flow': { type: 'string' }, 'inf-flow': { type: 'string' },
+      'flow-hidden': { type: 'string' }, 'obs-hidden': { type: 'string' }, embedding: { type: 'string' },
+      encoder: { type: 'string' }, 'proposal-hidden': { type: 'string' }, order: { type: 'string' },
+      discount: { type: 'string' }, seed: { type: 'string' }, 'split-seed': { type: 'string' }, split: { type: 'string' },
+      'eval-every': { type: 'string' }, 'eval-k': { type: 'string' }, 'checkpoint-every': { type: 'string' },
+      backend: { type: 'string' }, resume: { type: 'string' }, 'keep-case': { type: 'boolean' },
+      'allowed-chars': { type: 'string' }, quiet: { type: 'boolean' }, help: { type: 'boolean', short: 'h' },
+    },
+  });
+  if (v.help) return null;
+  if (!v.corpus) throw new Error('Give the corpus file with --corpus <file> (see --help).');
+  const model = (v.model ?? 'ssm') as ModelKind;
+  if (!['ssm', 'gru', 'ngram'].includes(model)) throw new Error(`--model must be ssm, gru or ngram (got "${v.model}").`);
+  const regime = (v.regime ?? 'token') as 'token' | 'type';
+  if (regime !== 'token' && regime !== 'type') throw new Error(`--regime must be token or type (got "${v.regime}").`);
+  const backend = (v.backend ?? 'wasm') as 'wasm' | 'cpu';
+  if (backend !== 'wasm' && backend !== 'cpu') throw new Error(`--backend must be wasm or cpu (got "${v.backend}").`);
+  const shareParts = (v.split ?? '0.8,0.1,0.1').split(',').map(Number);
+  if (shareParts.length !== 3 || shareParts.some((x) => !Number.isFinite(x) || x < 0)) {
+    throw new Error(`--split must be three shares like 0.8,0.1,0.1 (got "${v.split}").`);
+  }
+  const [train, validation, test] = shareParts as [number, number, number];
+  const pos = (n: number) => n > 0;
+  return {
+    corpus: v.corpus, model, regime, backend,
+    outDir: v.out ?? `runs/${model}-${new Date().toISOString().replace(/[:.]/g, '-')}`,
+    steps: num(v.steps, 'steps', 1000, whole(0), 'a whole number ≥ 0'),
+    batchSize: num(v['batch-size'], 'batch-size', 64, whole(1), 'a whole number ≥ 1'),
+    learningRate: num(v['learning-rate'], 'learning-rate', 0.01, pos, 'a positive number'),
+    clipNorm: num(v['clip-norm'], 'clip-norm', 5, (n) => n >= 0, '0 or a positive number'),
+    samples: num(v.samples, 'samples', 8, whole(1), 'a whole number ≥ 1'),
+    warmupSteps: num(v['warmup-steps'], 'warmup-steps', 0, whole(0), 'a whole number ≥ 0'),
+    stateSize: num(v['state-size'], 'state-size', 8, whole(1), 'a whole number ≥ 1'),
+    generativeFlow: flowList(v['gen-flow'] ?? 'coupling,coupling,diag', 'generative flow (--gen-flow)'),
+    inferenceFlow: flowList(v['inf-flow'] ?? 'diag', 'inference flow (--inf-flow)'),
+    flowHidden: num(v['flow-hidden'], 'flow-hidden', 32, whole(1), 'a whole number ≥ 1'),
+    observationHidden: num(v['obs-hidden'], 'obs-hidden', 0, whole(0), 'a whole number ≥ 0'),
+    embeddingSize: num(v.embedding, 'embedding', 16, whole(1), 'a whole number ≥ 1'),
+    encoderSize: num(v.encoder, 'encoder', 64, whole(1), 'a whole number ≥ 1'),
+    proposalHidden: num(v['proposal-hidden'], 'proposal-hidden', 32, whole(1), 'a whole number ≥ 1'),
+    order: num(v.order, 'order', 3, (n) => whole(1)(n) && n <= 6, 'a whole number from 1 to 6'),
+    discount: v.discount === undefined ? null : num(v.discount, 'discount', 0.75, (n) => n > 0 && n <= 1, 'a number in (0, 1]'),
+    seed: num(v.seed, 'seed', 1, Number.isInteger, 'a whole number'),
+    splitSeed: num(v['split-seed'], 'split-seed', 1, Number.isInteger, 'a whole number'),
+    shares: { train, validation, test },
+    evalEvery: num(v['eval-every'], 'eval-every', 200, whole(0), 'a whole number ≥ 0'),
+    evalK: num(v['eval-k'], 'eval-k', 64, whole(1), 'a whole number ≥ 1'),
+    checkpointEvery: num(v['checkpoint-every'], 'checkpoint-every', 0, whole(0), 'a whole number ≥ 0'),
+    resume: v.resume ?? null,
+    keepCase: v['keep-case'] ?? false,
+    allowedChars: v['allowed-chars'] ?? null,
+    quiet: v.quiet ?? false,
+  };
+}

@@ -1,0 +1,177 @@
+/**
+ * Lines of an uploaded corpus -> raw records (word, count, line number), with per-line problems.
+ * Used by `corpus-parse.ts`; see there for the file formats.
+ */
+import { type ProblemList, describeChar, quote } from './corpus-problems';
+import { splitCsvLine } from './csv-line';
+
+export type CorpusFormat = 'txt' | 'tsv' | 'csv';
+
+export interface RawRecord {
+  line: number;
+  word: string;
+  count: number;
+}
+
+export interface RecordOptions {
+  format: CorpusFormat;
+  maxLineBytes: number;
+}
+
+export interface RecordsResult {
+  records: RawRecord[];
+  header: string[] | null;
+  delimiter: string | null;
+  /** Number of columns the data lines have (1 or 2). */
+  columns: number;
+}
+
+const INTEGER = /^\+?\d+$/;
+const CONTROL = /[\u0000-\u001f\u007f-\u009f]/;
+const EDGE_BLANK = /^[ \t\u00a0]|[ \t\u00a0]$/;
+const NEGATIVE_INTEGER = /^-\d+$/;
+const NUMBERISH = /^[+-]?(\d[\d,_ ]*)?(\.\d*)?([eE][+-]?\d+)?$/;
+
+/** Parses a count field; returns the count or adds an error and returns null. */
+function parseCount(text: string, line: number, word: string, problems: ProblemList): number | null {
+  if (INTEGER.test(text)) {
+    const value = Number(text);
+    if (!Number.isSafeInteger(value)) {
+      problems.error(line, 'count-too-large', `Line ${line}: the count ${quote(text)} is too large; counts must be below 9,007,199,254,740,992.`);
+      return null;
+    }
+    if (value === 0) {
+      problems.error(line, 'count-zero', `Line ${line}: ${quote(word)} has count 0; give it a count of at least 1 or remove the line.`);
+      return null;
+    }
+    return value;
+  }
+  if (NEGATIVE_INTEGER.test(text)) {
+    problems.error(line, 'count-negative', `Line ${line}: ${quote(word)} has a negative count (${text}); counts must be whole numbers of at least 1.`);
+    return null;
+  }
+  const fix = text !== '' && NUMBERISH.test(text)
+    ? 'write it as a whole number of at least 1, without decimals, exponents or thousands separators'
+    : 'write a whole number of at least 1';
+  problems.error(line, 'count-not-integer', `Line ${line}: the count ${quote(text)} of ${quote(word)} is not a whole number; ${fix}.`);
+  return null;
+}
+
+function checkWord(word: string, line: number, problems: ProblemList): boolean {
+  if (word === '') {
+    problems.error(line, 'empty-word', `Line ${line} has no word; put the word in the first column or remove the line.`);
+    return false;
+  }
+  const control = word.match(CONTROL); // general category Cc is exactly U+0000–001F and U+007F–009F
+  if (control) {
+    problems.error(line, 'control-character', `Line ${line}: ${quote(word)} contains the control character ${describeChar(control[0])}; remove it.`);
+    return false;
+  }
+  if (/\s/u.test(word)) {
+    problems.error(line, 'space-in-word', `Line ${line}: ${quote(word)} contains a space; a word cannot contain spaces — join the parts or put each word on its own line.`);
+    return false;
+  }
+  return true;
+}
+
+const WORD_HEADERS = /^(word|words|name|names|token|tokens|type|types|form|item|string|entry)$/i;
+const COUNT_HEADERS = /^(count|counts|freq|frequency|frequencies|n|number|occurrences|tokens|total|weight)$/i;
+
+/**
+ * A first line is a header when its count column is not a number and one of its columns is a usual
+ * column name (word/name/…, count/freq/…). Otherwise a bad first count is reported as an error rather
+ * than silently skipped.
+ */
+function looksLikeHeader(fields: string[]): boolean {
+  const word = fields[0] ?? '';
+  if (fields.length < 2) return WORD_HEADERS.test(word);
+  const count = fields[1] ?? '';
+  return !INTEGER.test(count) && !NEGATIVE_INTEGER.test(count) && (WORD_HEADERS.test(word) || COUNT_HEADERS.test(count));
+}
+
+function pickDelimiter(format: CorpusFormat, lines: string[]): string | null {
+  if (format === 'txt') return null;
+  if (format === 'tsv') return '\t';
+  const first = lines.find((l) => l.trim() !== '') ?? '';
+  return !first.includes(',') && first.includes(';') ? ';' : ',';
+}
+
+/** Splits lines into records. Blank lines and trailing blanks are counted in `blank`/`trimmed`. */
+export function readRecords(
+  lines: string[],
+  lineBytes: number[],
+  opts: RecordOptions,
+  problems: ProblemList,
+): RecordsResult & { blankLines: number[]; trimmedLines: number[] } {
+  const delimiter = pickDelimiter(opts.format, lines);
+  const records: RawRecord[] = [];
+  const blankLines: number[] = [];
+  const trimmedLines: number[] = [];
+  let header: string[] | null = null;
+  let columns = 0;
+  let seenData = false;
+  lines.forEach((text, i) => {
+    const line = i + 1;
+    if ((lineBytes[i] ?? 0) > opts.maxLineBytes) {
+      problems.error(line, 'line-too-long', `Line ${line} is ${lineBytes[i]} bytes long (limit ${opts.maxLineBytes}); a line holds one word and its count — check for a missing line break.`);
+      seenData = true;
+      return;
+    }
+    if (text.trim() === '') {
+      blankLines.push(line);
+      return;
+    }
+    // Blanks at the ends of the line (a trailing tab too) and around fields are trimmed with a warning.
+    // A leading tab is kept in .tsv files: it means the word column is empty.
+    const leading = opts.format === 'tsv' ? /^[ \u00a0]+/ : /^[ \t\u00a0]+/;
+    const core = text.replace(/[ \t\u00a0]+$/, '').replace(leading, '');
+    let fields: string[];
+    if (delimiter === null) {
+      fields = [core];
+    } else if (opts.format === 'csv') {
+      const r = splitCsvLine(core, delimiter);
+      if (!r.ok) {
+        const what = r.code === 'unclosed-quote'
+          ? `opens a quote that is not closed on the same line; close the quote (words cannot contain line breaks)`
+          : `has a double quote outside a quoted field; put the whole field in quotes and write an inner quote as ""`;
+        problems.error(line, r.code, `Line ${line} ${what}.`);
+        seenData = true;
+        return;
+      }
+      fields = r.fields;
+    } else {
+      fields = core.split(delimiter);
+    }
+    const trimmed = fields.map((f) => (EDGE_BLANK.test(f) ? f.replace(/^[ \t\u00a0]+|[ \t\u00a0]+$/g, '') : f));
+    if (core !== text || trimmed.some((f, k) => f !== fields[k])) trimmedLines.push(line);
+    if (!seenData && delimiter !== null && looksLikeHeader(trimmed)) {
+      header = trimmed;
+      seenData = true;
+      return;
+    }
+    seenData = true;
+    if (delimiter === null) {
+      if (text.includes('\t')) {
+        problems.error(line, 'wrong-column-count', `Line ${line} contains a tab; a .txt file holds one word per line — upload the file as .tsv if the second column is a count.`);
+        return;
+      }
+    } else {
+      if (columns === 0) columns = trimmed.length === 1 ? 1 : 2;
+      if (trimmed.length !== columns) {
+        const want = columns === 2 ? '2 columns (word, count)' : '1 column (word), like the lines before it';
+        const sep = delimiter === '\t' ? 'tab' : `"${delimiter}"`;
+        problems.error(line, 'wrong-column-count', `Line ${line} has ${trimmed.length} columns separated by ${sep}; it needs ${want}.`);
+        return;
+      }
+    }
+    const word = trimmed[0] ?? '';
+    if (!checkWord(word, line, problems)) return;
+    if (columns === 2) {
+      const count = parseCount(trimmed[1] ?? '', line, word, problems);
+      if (count !== null) records.push({ line, word, count });
+    } else {
+      records.push({ line, word, count: 1 });
+    }
+  });
+  return { records, header, delimiter, columns: delimiter === null ? 1 : columns, blankLines, trimmedLines };
+}

@@ -1,0 +1,35 @@
+/**
+ * Diagonal shift-scale flow: `y = mu(c) + sigma(c) * z` with `sigma = softplus(.) + 1e-4`;
+ * `log |det dy/dz| = sum_i log sigma_i` (MODEL.md section 3). `mu` and `sigma` come from one fused matmul.
+ */
+import * as tf from '@tensorflow/tfjs-core';
+import type { ParamSpecs } from '../params';
+import { boundedScale, conditionerSpecs, runConditioner, SOFTPLUS_INVERSE_OF_ONE, type VariableLookup } from './conditioner';
+import type { FlowDims, FlowForward, FlowInverse, FlowLayer } from './flow-layer';
+
+export class DiagFlow implements FlowLayer {
+  readonly kind = 'diag' as const;
+  constructor(private readonly dims: FlowDims) {}
+
+  specs(): ParamSpecs {
+    const d = this.dims.dim;
+    const bias = [...new Array<number>(d).fill(0), ...new Array<number>(d).fill(SOFTPLUS_INVERSE_OF_ONE)];
+    return conditionerSpecs('net.', this.dims.ctxDim, this.dims.hidden, 2 * d, bias);
+  }
+
+  private muSigma(get: VariableLookup, c: tf.Tensor2D): { mu: tf.Tensor2D; sigma: tf.Tensor2D } {
+    const out = runConditioner(get, 'net.', c);
+    const [mu, pre] = tf.split(out, 2, 1) as [tf.Tensor2D, tf.Tensor2D];
+    return { mu, sigma: boundedScale(pre) as tf.Tensor2D };
+  }
+
+  forward(get: VariableLookup, c: tf.Tensor2D, z: tf.Tensor2D): FlowForward {
+    const { mu, sigma } = this.muSigma(get, c);
+    return { y: tf.add(mu, tf.mul(sigma, z)), logdet: tf.sum(tf.log(sigma), 1) };
+  }
+
+  inverse(get: VariableLookup, c: tf.Tensor2D, y: tf.Tensor2D): FlowInverse {
+    const { mu, sigma } = this.muSigma(get, c);
+    return { z: tf.div(tf.sub(y, mu), sigma), logdet: tf.neg(tf.sum(tf.log(sigma), 1)) as tf.Tensor1D };
+  }
+}

@@ -1,0 +1,9 @@
+import { Routes } from '@angular/router';
+
+export const ADMIN_ROUTES: Routes = [
+  {
+    path: '',
+    title: 'Admin · Noisewright',
+    loadComponent: () => import('./admin-page/admin-page').then((m) => m.AdminPage),
+  },
+];

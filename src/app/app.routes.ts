@@ -1,0 +1,47 @@
+import { Routes } from '@angular/router';
+import { adminGuard, signedInGuard } from './core/auth-guards';
+
+export const routes: Routes = [
+  { path: '', pathMatch: 'full', redirectTo: 'benches' },
+  { path: '', loadChildren: () => import('./auth/auth.routes').then((m) => m.AUTH_ROUTES) },
+  {
+    path: 'invite/:token',
+    title: 'Invitation · Noisewright',
+    loadComponent: () => import('./invite/accept-invitation/accept-invitation').then((m) => m.AcceptInvitation),
+  },
+  {
+    path: 'benches/:benchId/corpora',
+    canActivate: [signedInGuard],
+    loadChildren: () => import('./corpora/corpora.routes').then((m) => m.CORPORA_ROUTES),
+  },
+  {
+    path: 'benches/:benchId/runs',
+    canActivate: [signedInGuard],
+    loadChildren: () => import('./runs/runs.routes').then((m) => m.RUNS_ROUTES),
+  },
+  {
+    path: 'benches/:benchId/compare',
+    canActivate: [signedInGuard],
+    loadChildren: () => import('./compare/compare.routes').then((m) => m.COMPARE_ROUTES),
+  },
+  {
+    path: 'benches',
+    canActivate: [signedInGuard],
+    loadChildren: () => import('./benches/benches.routes').then((m) => m.BENCHES_ROUTES),
+  },
+  {
+    path: 'account',
+    canActivate: [signedInGuard],
+    loadChildren: () => import('./account/account.routes').then((m) => m.ACCOUNT_ROUTES),
+  },
+  {
+    path: 'admin',
+    canActivate: [adminGuard],
+    loadChildren: () => import('./admin/admin.routes').then((m) => m.ADMIN_ROUTES),
+  },
+  {
+    path: '**',
+    title: 'Page not found · Noisewright',
+    loadComponent: () => import('./ui/not-found/not-found').then((m) => m.NotFound),
+  },
+];

@@ -1,0 +1,65 @@
+/**
+ * The page-side state of one run that trains (or waits to train) in this tab. Signals hold what templates
+ * show; the curve points go out on a plain stream so the chart can `setOption` without re-rendering the page.
+ */
+import { signal } from '@angular/core';
+import { Subject } from 'rxjs';
+import type { RunDto } from '../../../shared/api/runs';
+import type { EngineInfo, TrainingProgress } from '../workers/trainer-api';
+
+export type LiveState = 'waiting' | 'starting' | 'training' | 'paused' | 'stopping' | 'finished' | 'stopped' | 'failed';
+
+/** Metric series names written to the server (see KNOWN_METRIC_SERIES in shared/api/runs.ts). */
+export const SERIES = {
+  train: 'train_bound',
+  validation: 'valid_bound',
+  entropy: 'obs_entropy',
+  noise: 'noise_mi',
+  speed: 'words_per_second',
+} as const;
+
+export interface CurvePoint { series: string; step: number; value: number }
+
+export class LiveRun {
+  readonly state = signal<LiveState>('waiting');
+  readonly progress = signal<TrainingProgress | null>(null);
+  readonly engine = signal<EngineInfo | null>(null);
+  /** A sentence for people when the run failed or could not start. */
+  readonly problem = signal<string | null>(null);
+  readonly samples = signal<string[]>([]);
+  /** Step of the last checkpoint saved to the server in this session. */
+  readonly lastSavedStep = signal<number | null>(null);
+  readonly points = new Subject<CurvePoint[]>();
+  /** Emits after a checkpoint was saved, so lists can reload. */
+  readonly checkpointSaved = new Subject<number>();
+
+  constructor(
+    readonly benchId: string,
+    readonly run: RunDto,
+    /** Checkpoint to resume from (null = fresh start from the seed). */
+    readonly fromCheckpointId: string | null,
+  ) {}
+
+  get id(): string {
+    return this.run.id;
+  }
+
+  get isActive(): boolean {
+    const s = this.state();
+    return s === 'starting' || s === 'training' || s === 'paused' || s === 'stopping';
+  }
+
+  /** The points a progress message adds to the curves. */
+  static pointsOf(p: TrainingProgress): CurvePoint[] {
+    const out: CurvePoint[] = [];
+    if (p.totalSteps > 0) out.push({ series: SERIES.train, step: p.step, value: p.trainBitsPerChar });
+    if (p.totalSteps > 0 && p.wordsPerSecond > 0) out.push({ series: SERIES.speed, step: p.step, value: p.wordsPerSecond });
+    const e = p.evaluation;
+    if (e) {
+      out.push({ series: SERIES.validation, step: e.step, value: e.validationBitsPerChar });
+      if (e.observationEntropyBits !== null) out.push({ series: SERIES.entropy, step: e.step, value: e.observationEntropyBits });
+      if (e.noiseInformationBits !== null) out.push({ series: SERIES.noise, step: e.step, value: e.noiseInformationBits });
+    }
+    return out.filter((pt) => Number.isFinite(pt.value));
+  }
+}

@@ -1,0 +1,143 @@
+import { DecimalPipe } from '@angular/common';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { toSignal } from '@angular/core/rxjs-interop';
+import { ReactiveFormsModule, type AbstractControl, type FormControl } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatCheckboxModule } from '@angular/material/checkbox';
+import { MatChipsModule } from '@angular/material/chips';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatRadioModule } from '@angular/material/radio';
+import { MatSelectModule } from '@angular/material/select';
+import { MatStepperModule } from '@angular/material/stepper';
+import { Router, RouterLink } from '@angular/router';
+import type { CorpusSummary } from '../../../../shared/api/corpora';
+import { FLOW_KINDS, type FlowKind } from '../../../../shared/model/flows/flow';
+import { ApiError, messageOf } from '../../core/api-error';
+import { CurrentBench } from '../../benches/current-bench';
+import { applyServerErrors } from '../../ui/form-messages';
+import { FAMILY_LABELS, FLOW_LABELS, formatDuration } from '../run-labels';
+import { applyPreset, createRunForm, createRunRequest, trainerSettingsFromForm, type PRESETS } from '../run-form';
+import { RunScheduler } from '../run-scheduler';
+import { parameterCountOf } from '../run-trainer-settings';
+import { RunsApi } from '../runs-api';
+import { estimateSeconds } from '../time-estimate';
+
+/** Inline message for a numeric or text control: what is wrong and how to fix it. */
+export function fieldMessage(c: AbstractControl, label: string): string {
+  const e = c.errors;
+  if (!e) return '';
+  if (typeof e['server'] === 'string') return e['server'];
+  if (e['required']) return `Enter ${label}.`;
+  if (e['pattern']) return `Enter ${label} as a whole number.`;
+  if (e['min']) return `Use ${label} of at least ${(e['min'] as { min: number }).min}.`;
+  if (e['max']) return `Use ${label} of at most ${(e['max'] as { max: number }).max}.`;
+  if (e['maxlength']) return `Use at most ${(e['maxlength'] as { requiredLength: number }).requiredLength} characters.`;
+  if (e['noLayers']) return `Add at least one layer to the ${label}.`;
+  if (e['tooManyLayers']) return `Use at most 8 layers in the ${label}.`;
+  return `Check ${label}.`;
+}
+
+/** The new-run form: data, model, training, review — with the parameter count and a rough time estimate. */
+@Component({
+  selector: 'nw-new-run',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    DecimalPipe, ReactiveFormsModule, RouterLink, MatButtonModule, MatCheckboxModule, MatChipsModule, MatFormFieldModule, MatIconModule,
+    MatInputModule, MatRadioModule, MatSelectModule, MatStepperModule,
+  ],
+  templateUrl: './new-run.html',
+  styleUrl: './new-run.scss',
+})
+export class NewRun {
+  readonly benchId = input.required<string>();
+  protected readonly bench = inject(CurrentBench);
+  private readonly api = inject(RunsApi);
+  private readonly scheduler = inject(RunScheduler);
+  private readonly router = inject(Router);
+
+  protected readonly form = createRunForm();
+  protected readonly flowKinds = FLOW_KINDS;
+  protected readonly flowLabels = FLOW_LABELS;
+  protected readonly familyLabels = FAMILY_LABELS;
+  protected readonly families = ['ssm', 'gru', 'ngram'] as const;
+  protected readonly msg = fieldMessage;
+  protected readonly corpora = signal<CorpusSummary[]>([]);
+  protected readonly problem = signal<string | null>(null);
+  protected readonly busy = signal(false);
+
+  private readonly value = toSignal(this.form.valueChanges, { initialValue: this.form.getRawValue() });
+  protected readonly family = computed(() => { this.value(); return this.form.controls.model.controls.family.value; });
+  private readonly corpus = computed(() => { this.value(); return this.corpora().find((c) => c.id === this.form.controls.data.controls.corpusId.value) ?? null; });
+  /** Trainable scalars, from the shared/model parameter tables (null: n-gram, or a setting is invalid). */
+  protected readonly parameterCount = computed(() => {
+    this.value();
+    if (this.form.controls.model.invalid) return null;
+    try {
+      return parameterCountOf(trainerSettingsFromForm(this.form.getRawValue()), (this.corpus()?.alphabetSize ?? 26) + 1);
+    } catch {
+      return null;
+    }
+  });
+  protected readonly estimate = computed(() => {
+    this.value();
+    if (this.form.invalid) return '—';
+    return formatDuration(estimateSeconds(trainerSettingsFromForm(this.form.getRawValue()), this.parameterCount()));
+  });
+
+  constructor() {
+    effect(() => {
+      const id = this.benchId();
+      untracked(() => {
+        if (this.bench.current()?.id !== id) void this.bench.open(id);
+        this.api.corpora(id).then((c) => this.corpora.set(c)).catch((e: unknown) => this.problem.set(messageOf(e)));
+      });
+    });
+  }
+
+  protected preset(name: keyof typeof PRESETS): void {
+    applyPreset(this.form, name);
+  }
+
+  protected stack(which: 'generativeFlow' | 'inferenceFlow'): FormControl<FlowKind[]> {
+    return this.form.controls.model.controls[which];
+  }
+
+  protected addLayer(which: 'generativeFlow' | 'inferenceFlow', kind: FlowKind): void {
+    const c = this.stack(which);
+    c.setValue([...c.value, kind]);
+    c.markAsTouched();
+  }
+
+  protected removeLayer(which: 'generativeFlow' | 'inferenceFlow', index: number): void {
+    const c = this.stack(which);
+    c.setValue(c.value.filter((_, i) => i !== index));
+    c.markAsTouched();
+  }
+
+  protected async start(): Promise<void> {
+    this.form.markAllAsTouched();
+    if (this.form.invalid) {
+      this.problem.set('Some settings need fixing; the steps marked in red say what to change.');
+      return;
+    }
+    this.busy.set(true);
+    this.problem.set(null);
+    try {
+      const run = await this.api.create(this.benchId(), createRunRequest(this.form.getRawValue()));
+      await this.scheduler.enqueue(this.benchId(), run);
+      await this.router.navigate(['/benches', this.benchId(), 'runs', run.id]);
+    } catch (error) {
+      if (error instanceof ApiError && Object.keys(error.fields).length > 0) {
+        const fields = Object.fromEntries(Object.entries(error.fields).map(([k, v]) => [k.split('.').at(-1) ?? k, v]));
+        const left = [this.form.controls.data, this.form.controls.model, this.form.controls.training].flatMap((g) => applyServerErrors(g, fields));
+        this.problem.set([error.message, ...left].join(' '));
+      } else {
+        this.problem.set(messageOf(error));
+      }
+    } finally {
+      this.busy.set(false);
+    }
+  }
+}

@@ -1,0 +1,211 @@
+import { Injectable, OnDestroy, computed, inject, signal } from '@angular/core';
+import { proxy } from 'comlink';
+import type { RunDto } from '../../../shared/api/runs';
+import { messageOf } from '../core/api-error';
+import { TRAINER_FACTORY, fromBoundaryError, type TrainerHandle } from '../workers/trainer-client';
+import type { TrainingOutcome, TrainingProgress } from '../workers/trainer-api';
+import { LiveRun, type CurvePoint } from './live-run';
+import { trainerSettingsOf, trainingSetOf } from './run-trainer-settings';
+import { RunsApi } from './runs-api';
+
+const FLUSH_EVERY_MS = 2000;
+const FLUSH_AT_POINTS = 500;
+
+interface Slot { live: LiveRun; handle: TrainerHandle | null; buffer: CurvePoint[]; lastFlush: number; saving: boolean; nextSave: number }
+
+/**
+ * Trains runs in this tab, one dedicated worker each, at most `limit` at once (hardware threads minus one, at
+ * least one); the rest wait in a visible queue. Sends metric points in batches, autosaves checkpoints, keeps
+ * the server's run status in step, and ends every worker (`releaseProxy` + `terminate`) when done or destroyed.
+ */
+@Injectable({ providedIn: 'root' })
+export class RunScheduler implements OnDestroy {
+  private readonly api = inject(RunsApi);
+  private readonly factory = inject(TRAINER_FACTORY);
+  private readonly slots = new Map<string, Slot>();
+  private readonly version = signal(0);
+
+  readonly limit = Math.max(1, (globalThis.navigator?.hardwareConcurrency ?? 2) - 1);
+  /** Every run this tab knows about (active, waiting and ended in this session), newest first. */
+  readonly runs = computed(() => { this.version(); return [...this.slots.values()].map((s) => s.live).reverse(); });
+  readonly active = computed(() => this.runs().filter((r) => r.isActive));
+  readonly waiting = computed(() => this.runs().filter((r) => r.state() === 'waiting'));
+
+  live(runId: string): LiveRun | null {
+    this.version();
+    return this.slots.get(runId)?.live ?? null;
+  }
+
+  /** Queues a run (fresh, or from a checkpoint); it starts as soon as a worker slot is free. */
+  async enqueue(benchId: string, run: RunDto, fromCheckpointId: string | null = null): Promise<LiveRun> {
+    const existing = this.slots.get(run.id);
+    if (existing && (existing.live.isActive || existing.live.state() === 'waiting')) return existing.live;
+    const live = new LiveRun(benchId, run, fromCheckpointId);
+    this.slots.delete(run.id);
+    this.slots.set(run.id, { live, handle: null, buffer: [], lastFlush: performance.now(), saving: false, nextSave: 0 });
+    this.version.update((v) => v + 1);
+    await this.api.update(benchId, run.id, { status: 'queued', statusReason: null }).catch(() => undefined);
+    this.pump();
+    return live;
+  }
+
+  async pause(runId: string): Promise<void> {
+    const slot = this.slots.get(runId);
+    if (!slot?.handle || slot.live.state() !== 'training') return;
+    await slot.handle.api.pause();
+    slot.live.state.set('paused');
+    await this.flush(slot, { status: 'paused' });
+  }
+
+  async resume(runId: string): Promise<void> {
+    const slot = this.slots.get(runId);
+    if (!slot?.handle || slot.live.state() !== 'paused') return;
+    await slot.handle.api.resume();
+    slot.live.state.set('training');
+    await this.flush(slot, { status: 'training' });
+  }
+
+  async stop(runId: string): Promise<void> {
+    const slot = this.slots.get(runId);
+    if (!slot) return;
+    if (slot.live.state() === 'waiting') {
+      slot.live.state.set('stopped');
+      await this.api.update(slot.live.benchId, runId, { status: 'stopped' }).catch(() => undefined);
+      return;
+    }
+    if (!slot.handle || !slot.live.isActive) return;
+    slot.live.state.set('stopping');
+    await slot.handle.api.stop();
+  }
+
+  ngOnDestroy(): void {
+    for (const slot of this.slots.values()) this.close(slot);
+    this.slots.clear();
+  }
+
+  private pump(): void {
+    const running = [...this.slots.values()].filter((s) => s.handle !== null || s.live.state() === 'starting').length;
+    const next = [...this.slots.values()].find((s) => s.live.state() === 'waiting');
+    if (!next || running >= this.limit) return;
+    void this.launch(next).finally(() => this.pump());
+    this.pump();
+  }
+
+  private async launch(slot: Slot): Promise<void> {
+    const { live } = slot;
+    const { benchId, run } = live;
+    live.state.set('starting');
+    try {
+      const settings = trainerSettingsOf(run);
+      if (!run.corpus) throw new Error('The corpus of this run was deleted; it cannot be trained any more.');
+      const [corpus, bytes] = await Promise.all([
+        this.api.trainingSet(benchId, run.corpus.id),
+        live.fromCheckpointId ? this.api.downloadCheckpoint(benchId, run.id, live.fromCheckpointId) : Promise.resolve(undefined),
+      ]);
+      slot.handle = this.factory();
+      const info = await slot.handle.api.init(settings, trainingSetOf(run, corpus), bytes);
+      live.engine.set(info);
+      const every = run.settings.training?.checkpointEvery ?? 0;
+      slot.nextSave = every > 0 ? (Math.floor(info.step / every) + 1) * every : Number.POSITIVE_INFINITY;
+      // Curves restart from the checkpoint: points after its step belong to the abandoned continuation.
+      await this.api.truncateMetrics(benchId, run.id, info.step).catch(() => undefined);
+      live.state.set('training');
+      await this.api.update(benchId, run.id, {
+        status: 'training', statusReason: null, stepsDone: info.step,
+        summary: { backend: info.backend, simd: info.simd, threads: info.threads, parameterCount: info.parameterCount },
+      });
+      const outcome = await slot.handle.api.start(proxy((p: TrainingProgress) => this.onProgress(slot, p)));
+      await this.finish(slot, outcome);
+    } catch (error) {
+      const problem = error instanceof Error && error.name === 'ApiError' ? messageOf(error) : fromBoundaryError(error).message;
+      live.problem.set(problem);
+      live.state.set('failed');
+      await this.api.update(benchId, run.id, { status: 'failed', statusReason: problem.slice(0, 500) }).catch(() => undefined);
+    } finally {
+      this.close(slot);
+    }
+  }
+
+  private onProgress(slot: Slot, p: TrainingProgress): void {
+    const { live } = slot;
+    live.progress.set(p);
+    if (p.evaluation && p.evaluation.samples.length > 0) live.samples.update((old) => [...p.evaluation!.samples, ...old].slice(0, 30));
+    const points = LiveRun.pointsOf(p);
+    live.points.next(points);
+    slot.buffer.push(...points);
+    if (p.step >= slot.nextSave && !slot.saving) void this.autosave(slot, p.step);
+    if (slot.buffer.length >= FLUSH_AT_POINTS || performance.now() - slot.lastFlush >= FLUSH_EVERY_MS) void this.flush(slot);
+  }
+
+  private async autosave(slot: Slot, step: number): Promise<void> {
+    const every = slot.live.run.settings.training?.checkpointEvery ?? 0;
+    slot.saving = true;
+    slot.nextSave = (Math.floor(step / every) + 1) * every;
+    try {
+      await this.saveCheckpoint(slot, 'auto');
+    } catch (error) {
+      slot.live.problem.set(`Autosave failed: ${messageOf(error)}`);
+    } finally {
+      slot.saving = false;
+    }
+  }
+
+  private async saveCheckpoint(slot: Slot, reason: 'auto' | 'stop'): Promise<void> {
+    if (!slot.handle) return;
+    const bytes = await slot.handle.api.checkpoint();
+    const p = slot.live.progress();
+    const bound = p?.evaluation?.validationBitsPerChar ?? p?.trainBitsPerChar;
+    const ck = await this.api.uploadCheckpoint(slot.live.benchId, slot.live.id, bytes, reason, bound);
+    slot.live.lastSavedStep.set(ck.step);
+    slot.live.checkpointSaved.next(ck.step);
+  }
+
+  /** Sends buffered metric points and the run's progress (steps, summary, optional status). */
+  private async flush(slot: Slot, extra: { status?: 'training' | 'paused' } = {}): Promise<void> {
+    const { live } = slot;
+    const points = slot.buffer.splice(0);
+    slot.lastFlush = performance.now();
+    const p = live.progress();
+    try {
+      if (points.length > 0) await this.api.addMetrics(live.benchId, live.id, { points });
+      if (p) {
+        await this.api.update(live.benchId, live.id, {
+          ...extra, stepsDone: p.step,
+          summary: {
+            lastBoundBitsPerChar: p.trainBitsPerChar, lastIsBound: p.isBound, wordsPerSecond: Math.max(0, p.wordsPerSecond),
+            ...(p.evaluation ? { bestValidationBitsPerChar: p.evaluation.validationBitsPerChar, bestValidationStep: p.evaluation.step } : {}),
+          },
+        });
+      } else if (extra.status) {
+        await this.api.update(live.benchId, live.id, extra);
+      }
+    } catch (error) {
+      live.problem.set(`Could not save progress to the server: ${messageOf(error)}`);
+    }
+  }
+
+  private async finish(slot: Slot, outcome: TrainingOutcome): Promise<void> {
+    const { live } = slot;
+    try {
+      await this.saveCheckpoint(slot, 'stop');
+    } catch (error) {
+      live.problem.set(`The final checkpoint could not be saved: ${messageOf(error)}`);
+    }
+    await this.flush(slot);
+    if (outcome.kind === 'failed') {
+      live.problem.set(outcome.error.message);
+      live.state.set('failed');
+      await this.api.update(live.benchId, live.id, { status: 'failed', statusReason: outcome.error.message.slice(0, 500), stepsDone: outcome.step }).catch(() => undefined);
+      return;
+    }
+    const status = outcome.kind === 'completed' ? 'finished' : 'stopped';
+    live.state.set(status);
+    await this.api.update(live.benchId, live.id, { status, stepsDone: outcome.step }).catch(() => undefined);
+  }
+
+  private close(slot: Slot): void {
+    slot.handle?.close();
+    slot.handle = null;
+    this.version.update((v) => v + 1);
+  }
+}

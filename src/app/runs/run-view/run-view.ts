@@ -1,0 +1,161 @@
+import { DecimalPipe } from '@angular/common';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked, viewChild } from '@angular/core';
+import { MatButtonModule } from '@angular/material/button';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { RouterLink } from '@angular/router';
+import type { Subscription } from 'rxjs';
+import { KNOWN_METRIC_SERIES, type CheckpointDto, type MetricSeriesPage, type RunDto } from '../../../../shared/api/runs';
+import { messageOf } from '../../core/api-error';
+import { CurrentBench } from '../../benches/current-bench';
+import { RunCheckpoints } from '../run-checkpoints/run-checkpoints';
+import { RunCurves } from '../run-curves/run-curves';
+import { FAMILY_LABELS, STATUS_LABELS, formatDuration } from '../run-labels';
+import { RunScheduler } from '../run-scheduler';
+import { RunsApi } from '../runs-api';
+
+/** One run: live progress and curves while it trains in this tab, its checkpoints, and resume / export. */
+@Component({
+  selector: 'nw-run-view',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [DecimalPipe, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RunCheckpoints, RunCurves],
+  templateUrl: './run-view.html',
+  styleUrl: './run-view.scss',
+})
+export class RunView {
+  readonly benchId = input.required<string>();
+  readonly runId = input.required<string>();
+  protected readonly bench = inject(CurrentBench);
+  protected readonly scheduler = inject(RunScheduler);
+  private readonly api = inject(RunsApi);
+  private readonly curves = viewChild(RunCurves);
+
+  protected readonly run = signal<RunDto | null>(null);
+  protected readonly checkpoints = signal<CheckpointDto[]>([]);
+  protected readonly history = signal<MetricSeriesPage['series']>({});
+  protected readonly problem = signal<string | null>(null);
+  protected readonly busy = signal(false);
+  protected readonly familyLabels = FAMILY_LABELS;
+  protected readonly statusLabels = STATUS_LABELS;
+  protected readonly duration = formatDuration;
+
+  protected readonly live = computed(() => this.scheduler.live(this.runId()));
+  protected readonly progress = computed(() => this.live()?.progress() ?? null);
+  protected readonly percent = computed(() => {
+    const p = this.progress();
+    return p && p.totalSteps > 0 ? (100 * p.step) / p.totalSteps : 0;
+  });
+  protected readonly stateLabel = computed(() => {
+    const l = this.live();
+    if (l) return l.state();
+    const r = this.run();
+    return r ? STATUS_LABELS[r.status].toLowerCase() : '';
+  });
+  /** The server says it trains, but no worker in this tab has it (e.g. the tab that trained it was closed). */
+  protected readonly orphaned = computed(() => {
+    const r = this.run();
+    return !!r && !this.live()?.isActive && this.live()?.state() !== 'waiting' && ['training', 'paused', 'queued'].includes(r.status);
+  });
+  protected readonly latestCheckpoint = computed(() => this.checkpoints().reduce<CheckpointDto | null>((a, c) => (!a || c.step > a.step ? c : a), null));
+  private liveSubs: Subscription[] = [];
+
+  constructor() {
+    effect(() => {
+      const benchId = this.benchId();
+      const runId = this.runId();
+      untracked(() => {
+        if (this.bench.current()?.id !== benchId) void this.bench.open(benchId);
+        void this.load(benchId, runId);
+      });
+    });
+    // Follow the run's live stream (curves, checkpoint list, end of training) whenever this tab trains it.
+    effect(() => {
+      const live = this.live();
+      untracked(() => {
+        this.liveSubs.forEach((s) => s.unsubscribe());
+        this.liveSubs = [];
+        this.curves()?.follow(live?.points ?? null);
+        if (live) this.liveSubs.push(live.checkpointSaved.subscribe(() => void this.refreshCheckpoints()));
+      });
+    });
+    effect(() => {
+      const state = this.live()?.state();
+      if (state === 'finished' || state === 'stopped' || state === 'failed') untracked(() => void this.refreshRun());
+    });
+    inject(DestroyRef).onDestroy(() => this.liveSubs.forEach((s) => s.unsubscribe()));
+  }
+
+  private async load(benchId: string, runId: string): Promise<void> {
+    try {
+      const [run, checkpoints, metrics] = await Promise.all([
+        this.api.get(benchId, runId), this.api.checkpoints(benchId, runId), this.api.metrics(benchId, runId, [...KNOWN_METRIC_SERIES]),
+      ]);
+      this.run.set(run);
+      this.checkpoints.set(checkpoints);
+      if (!this.live()?.isActive) {
+        this.history.set(metrics.series);
+        this.curves()?.reset(metrics.series);
+      }
+      this.problem.set(null);
+    } catch (error) {
+      this.problem.set(messageOf(error));
+    }
+  }
+
+  private async refreshRun(): Promise<void> {
+    try {
+      this.run.set(await this.api.get(this.benchId(), this.runId()));
+      await this.refreshCheckpoints();
+    } catch (error) {
+      this.problem.set(messageOf(error));
+    }
+  }
+
+  private async refreshCheckpoints(): Promise<void> {
+    try {
+      this.checkpoints.set(await this.api.checkpoints(this.benchId(), this.runId()));
+    } catch (error) {
+      this.problem.set(messageOf(error));
+    }
+  }
+
+  protected pause(): void { void this.scheduler.pause(this.runId()).catch((e: unknown) => this.problem.set(messageOf(e))); }
+  protected resume(): void { void this.scheduler.resume(this.runId()).catch((e: unknown) => this.problem.set(messageOf(e))); }
+  protected stop(): void { void this.scheduler.stop(this.runId()).catch((e: unknown) => this.problem.set(messageOf(e))); }
+
+  /** Trains the run in this tab: from a checkpoint, or from the latest one, or fresh when there is none. */
+  protected async trainFrom(ck: CheckpointDto | null): Promise<void> {
+    const run = this.run();
+    if (!run) return;
+    this.busy.set(true);
+    try {
+      const from = ck ?? this.latestCheckpoint();
+      const keep = from?.step ?? 0;
+      const trimmed = Object.fromEntries(Object.entries(this.history()).map(([k, s]) => {
+        const n = s.steps.findIndex((x) => x > keep);
+        return [k, n < 0 ? s : { steps: s.steps.slice(0, n), values: s.values.slice(0, n) }];
+      }));
+      this.history.set(trimmed);
+      this.curves()?.reset(trimmed);
+      await this.scheduler.enqueue(this.benchId(), run, from?.id ?? null);
+    } catch (error) {
+      this.problem.set(messageOf(error));
+    } finally {
+      this.busy.set(false);
+    }
+  }
+
+  protected async download(ck: CheckpointDto): Promise<void> {
+    try {
+      const bytes = await this.api.downloadCheckpoint(this.benchId(), this.runId(), ck.id);
+      const url = URL.createObjectURL(new Blob([bytes as BlobPart], { type: 'application/octet-stream' }));
+      const a = document.createElement('a');
+      a.href = url;
+      a.download = `${(this.run()?.name ?? 'run').replace(/[^\w.-]+/g, '-')}-step-${ck.step}.nwck`;
+      a.click();
+      setTimeout(() => URL.revokeObjectURL(url), 10_000);
+    } catch (error) {
+      this.problem.set(messageOf(error));
+    }
+  }
+}

@@ -1,0 +1,198 @@
+/**
+ * The real `TrainerApi` implementation: one run's model, its training loop and the live measurements. The
+ * worker entry (`trainer.worker.ts`) exposes an instance with comlink; tests expose it over an in-thread
+ * `MessageChannel`. The loop yields to the event loop every few tens of milliseconds so that pause, stop and
+ * checkpoint requests are served between steps, and throttles progress messages so the page stays idle.
+ */
+import { transfer } from 'comlink';
+import { decodeCheckpoint, encodeCheckpoint } from '../../../shared/model/checkpoint';
+import { TrainerError, TrainerErrorCode, toTrainerError } from '../../../shared/model/trainer-errors';
+import { createEngine, type RunEngine } from './run-engines';
+import type {
+  EngineInfo, ProgressCallback, TrainerApi, TrainerSettings, TrainingOutcome, TrainingProgress, TrainingSet,
+} from './trainer-api';
+
+/** What the worker entry knows about the compute it set up (backend name, SIMD, threads). */
+export interface BackendReport { backend: string; simd: boolean; threads: number }
+
+const YIELD_EVERY_MS = 25;
+/** At most two progress messages a second keep the page's main thread nearly idle. */
+const PROGRESS_EVERY_MS = 500;
+
+const yieldToEvents = () => new Promise<void>((resolve) => setTimeout(resolve, 0));
+
+/**
+ * Comlink sends a thrown Error as plain `{ name, message }`; the name carries the code from
+ * shared/model/trainer-errors.ts so the page can branch on it (`fromBoundaryError` in trainer-client.ts).
+ */
+function boundaryError(error: unknown): Error {
+  const shape = toTrainerError(error);
+  const e = new Error(shape.message);
+  e.name = shape.code;
+  return e;
+}
+
+export class TrainerSession implements TrainerApi {
+  private engine: RunEngine | null = null;
+  private settings: TrainerSettings | null = null;
+  private running = false;
+  private stopRequested = false;
+  private pauseGate: { promise: Promise<void>; release: () => void } | null = null;
+
+  /** `backend` sets up (or reports) the TF.js backend; the worker passes its WASM/CPU set-up here. */
+  constructor(private readonly backend: () => Promise<BackendReport>) {}
+
+  async init(settings: TrainerSettings, trainingSet: TrainingSet, checkpoint?: Uint8Array): Promise<EngineInfo> {
+    try {
+      if (this.engine) throw new TrainerError(TrainerErrorCode.WrongState, 'This worker already holds a run; start a new worker for another run.');
+      validateSettings(settings);
+      const report = await this.backend();
+      const ck = checkpoint ? decodeCheckpoint(checkpoint) : null;
+      this.engine = createEngine(settings, trainingSet, ck);
+      this.settings = settings;
+      return { ...report, parameterCount: this.engine.parameterCount, step: this.engine.stepCount };
+    } catch (e) {
+      throw boundaryError(e);
+    }
+  }
+
+  async start(onProgress: ProgressCallback): Promise<TrainingOutcome> {
+    const engine = this.engine;
+    const s = this.settings;
+    if (!engine || !s) throw boundaryError(new TrainerError(TrainerErrorCode.WrongState, 'Call init before start.'));
+    if (this.running) throw boundaryError(new TrainerError(TrainerErrorCode.WrongState, 'This run is training already.'));
+    this.running = true;
+    this.stopRequested = false;
+    try {
+      if (engine.closedForm) {
+        // Awaited so the page has the figures before `start` resolves (comlink callbacks travel on their own port).
+        await onProgress({ step: 0, totalSteps: 0, wordsPerSecond: 0, etaSeconds: 0, trainBitsPerChar: 0, isBound: true, evaluation: engine.evaluate() });
+        return { kind: 'completed', step: 0 };
+      }
+      return await this.loop(engine, s, onProgress);
+    } finally {
+      this.running = false;
+    }
+  }
+
+  private async loop(engine: RunEngine, s: TrainerSettings, onProgress: ProgressCallback): Promise<TrainingOutcome> {
+    let lastYield = performance.now();
+    let lastReport = lastYield;
+    let windowStart = lastYield;
+    let windowSteps = 0;
+    let windowPausedMs = 0;
+    let sumBits = 0;
+    let nBits = 0;
+    let isBound = true;
+    let wordsPerSecond = 0;
+    while (engine.stepCount < s.steps) {
+      if (this.pauseGate) {
+        const pausedAt = performance.now();
+        await this.pauseGate.promise;
+        windowPausedMs += performance.now() - pausedAt;
+        lastYield = performance.now();
+      }
+      if (this.stopRequested) return { kind: 'stopped', step: engine.stepCount };
+      let figures;
+      try {
+        figures = engine.step();
+      } catch (e) {
+        return { kind: 'failed', step: engine.stepCount, error: toTrainerError(e) };
+      }
+      windowSteps++;
+      sumBits += figures.bitsPerChar;
+      nBits++;
+      isBound = figures.isBound;
+      const step = engine.stepCount;
+      const evalNow = (s.evalEvery > 0 && step % s.evalEvery === 0) || step === s.steps;
+      const now = performance.now();
+      if (evalNow || now - lastReport >= PROGRESS_EVERY_MS) {
+        const elapsed = (now - windowStart - windowPausedMs) / 1000;
+        if (elapsed > 0) wordsPerSecond = (windowSteps * s.batchSize) / elapsed;
+        const progress: TrainingProgress = {
+          step, totalSteps: s.steps, wordsPerSecond,
+          etaSeconds: wordsPerSecond > 0 ? ((s.steps - step) * s.batchSize) / wordsPerSecond : null,
+          trainBitsPerChar: sumBits / nBits, isBound,
+        };
+        if (evalNow) {
+          try {
+            progress.evaluation = engine.evaluate();
+          } catch (e) {
+            return { kind: 'failed', step, error: toTrainerError(e) };
+          }
+        }
+        if (step === s.steps) await onProgress(progress); // the last message arrives before `start` resolves
+        else void onProgress(progress);
+        lastReport = performance.now();
+        windowStart = lastReport;
+        windowSteps = 0;
+        windowPausedMs = 0;
+        sumBits = 0;
+        nBits = 0;
+      }
+      if (performance.now() - lastYield >= YIELD_EVERY_MS) {
+        await yieldToEvents();
+        lastYield = performance.now();
+      }
+    }
+    return { kind: 'completed', step: engine.stepCount };
+  }
+
+  async pause(): Promise<void> {
+    if (this.pauseGate) return;
+    let release = () => {};
+    const promise = new Promise<void>((resolve) => { release = resolve; });
+    this.pauseGate = { promise, release };
+  }
+
+  async resume(): Promise<void> {
+    const gate = this.pauseGate;
+    this.pauseGate = null;
+    gate?.release();
+  }
+
+  async stop(): Promise<void> {
+    this.stopRequested = true;
+    await this.resume();
+  }
+
+  async checkpoint(): Promise<Uint8Array> {
+    try {
+      if (!this.engine) throw new TrainerError(TrainerErrorCode.WrongState, 'Call init before asking for a checkpoint.');
+      const bytes = encodeCheckpoint(this.engine.checkpoint());
+      return transfer(bytes, [bytes.buffer as ArrayBuffer]);
+    } catch (e) {
+      throw boundaryError(e);
+    }
+  }
+
+  async samples(n: number): Promise<string[]> {
+    try {
+      if (!this.engine) throw new TrainerError(TrainerErrorCode.WrongState, 'Call init before asking for samples.');
+      if (!Number.isInteger(n) || n < 1 || n > 1000) throw new TrainerError(TrainerErrorCode.BadSettings, `Ask for 1 to 1000 samples (got ${n}).`);
+      return this.engine.samples(n);
+    } catch (e) {
+      throw boundaryError(e);
+    }
+  }
+
+  async dispose(): Promise<void> {
+    this.stopRequested = true;
+    await this.resume();
+    this.engine?.dispose();
+    this.engine = null;
+  }
+}
+
+function validateSettings(s: TrainerSettings): void {
+  const bad = (m: string) => new TrainerError(TrainerErrorCode.BadSettings, m);
+  if (!s || typeof s !== 'object') throw bad('The run settings are missing.');
+  if (!['ssm', 'gru', 'ngram'].includes(s.family)) throw bad(`Unknown model family "${String(s.family)}"; choose ssm, gru or ngram.`);
+  const whole = (name: keyof TrainerSettings, min: number) => {
+    const v = s[name];
+    if (typeof v !== 'number' || !Number.isInteger(v) || v < min) throw bad(`Setting "${name}" must be a whole number ≥ ${min}; got ${JSON.stringify(v)}.`);
+  };
+  whole('steps', 0); whole('batchSize', 1); whole('samples', 1); whole('stateSize', 1); whole('warmupSteps', 0); whole('evalEvery', 0);
+  if (!(s.learningRate > 0) || !Number.isFinite(s.learningRate)) throw bad(`The learning rate must be a positive number; got ${s.learningRate}.`);
+  if (!(s.clipNorm >= 0)) throw bad(`The clipping norm must be 0 (off) or positive; got ${s.clipNorm}.`);
+}

@@ -1,0 +1,89 @@
+/**
+ * Account basics in Chromium on a development server with the demo seed: the sign-in page offers the demo
+ * account, a signed-out visitor is sent to sign-in and back, the password can be changed (a wrong current
+ * password is reported on its field), and sign-out ends the session.
+ */
+import assert from 'node:assert/strict';
+import { after, before, test } from 'node:test';
+import { launchBrowser, screenshot, type TestBrowser } from './support/browser';
+import { startTestServer, type TestServer } from './support/test-server';
+
+let server: TestServer;
+let browser: TestBrowser;
+
+before(async () => {
+  server = await startTestServer({ SEED_DEMO: 'true' });
+  browser = await launchBrowser();
+});
+
+after(async () => {
+  await browser?.close();
+  await server?.stop();
+});
+
+test('demo sign-in, return to the asked page, password change and sign-out', async () => {
+  const { page, problems } = await browser.newPerson(server.url);
+  const demo = { email: server.server.config.demoEmail, password: server.server.config.demoPassword };
+
+  // A signed-out visitor asking for /account lands on sign-in, which shows the demo account.
+  await page.goto('/account');
+  await page.waitForURL('**/sign-in?returnUrl=%2Faccount');
+  await page.getByTestId('demo-sign-in').filter({ hasText: demo.email }).waitFor();
+  await screenshot(page, 'account-01-sign-in-with-demo');
+
+  // A wrong password gets one sentence that says what to do; nothing about whether the account exists.
+  await page.getByLabel('E-mail').fill(demo.email);
+  await page.getByLabel('Password').fill('not-the-password');
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await page.getByRole('alert').filter({ hasText: 'E-mail or password is wrong' }).waitFor();
+
+  await page.getByRole('button', { name: 'Fill in the demo account' }).click();
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await page.waitForURL('**/account');
+  await page.getByText(demo.email).first().waitFor();
+
+  // Wrong current password: reported on that field, nothing changes.
+  const newPassword = 'a-brand-new-passphrase';
+  await page.getByLabel('Current password').fill('wrong-current-one');
+  await page.getByLabel('New password', { exact: true }).fill(newPassword);
+  await page.getByLabel('New password again').fill(newPassword);
+  await page.getByRole('button', { name: 'Change password' }).click();
+  await page.getByText('The current password is wrong: type it again.', { exact: true }).waitFor();
+  await screenshot(page, 'account-02-wrong-current-password');
+
+  await page.getByLabel('Current password').fill(demo.password);
+  await page.getByRole('button', { name: 'Change password' }).click();
+  await page.getByText('Password changed.').waitFor();
+  // The session continues with the new token.
+  await page.reload();
+  await page.getByRole('heading', { name: 'Account' }).waitFor();
+  assert.equal(page.url(), `${server.url}/account`);
+
+  // The benches page lists the demo bench.
+  await page.getByRole('navigation').getByRole('link', { name: 'Benches' }).click();
+  await page.getByRole('table', { name: 'Your benches' }).getByRole('row').nth(1).waitFor();
+  await screenshot(page, 'account-03-benches');
+
+  // On a phone-sized screen the navigation hides behind a menu button.
+  await page.setViewportSize({ width: 390, height: 820 });
+  await page.getByRole('button', { name: 'Show or hide navigation' }).click();
+  await page.getByRole('navigation').getByRole('link', { name: 'Account' }).waitFor();
+  await screenshot(page, 'account-04-narrow-navigation');
+  await page.getByRole('navigation').getByRole('link', { name: 'Benches' }).click();
+  await page.setViewportSize({ width: 1280, height: 860 });
+
+  // Sign out from the user menu; the old password no longer works, the new one does.
+  await page.getByRole('button', { name: /Demo Admin/ }).click();
+  await page.getByRole('menuitem', { name: 'Sign out' }).click();
+  await page.waitForURL('**/sign-in');
+  assert.equal(await page.evaluate(() => localStorage.getItem('noisewright.token')), null);
+  await page.getByLabel('E-mail').fill(demo.email);
+  await page.getByLabel('Password').fill(demo.password);
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await page.getByRole('alert').filter({ hasText: 'E-mail or password is wrong' }).waitFor();
+  await page.getByLabel('Password').fill(newPassword);
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await page.waitForURL('**/benches');
+
+  assert.deepEqual(problems, [], 'the page threw no errors');
+});

@@ -1,0 +1,157 @@
+/**
+ * Training in the browser, end to end in Chromium: a run on a demo corpus is designed in the new-run form,
+ * trains in a web worker for a few hundred steps while the curves move, is paused, resumed and stopped; its
+ * checkpoint is listed; after a page reload the run continues from that checkpoint. A PerformanceObserver
+ * checks that no main-thread task takes longer than 50 ms while the worker trains.
+ */
+import assert from 'node:assert/strict';
+import { readFileSync } from 'node:fs';
+import { after, before, test } from 'node:test';
+import type { Page } from 'playwright-core';
+import { launchBrowser, screenshot, type TestBrowser } from './support/browser';
+import { startTestServer, type TestServer } from './support/test-server';
+
+let server: TestServer;
+let browser: TestBrowser;
+
+before(async () => {
+  server = await startTestServer();
+  browser = await launchBrowser();
+});
+
+after(async () => {
+  await browser?.close();
+  await server?.stop();
+});
+
+async function api<T>(path: string, token: string, init: RequestInit = {}): Promise<T> {
+  const res = await fetch(`${server.url}/api${path}`, { ...init, headers: { Authorization: `Bearer ${token}`, ...(init.headers ?? {}) } });
+  if (!res.ok) throw new Error(`${init.method ?? 'GET'} ${path} answered ${res.status}: ${await res.text()}`);
+  return (await res.json()) as T;
+}
+
+const LONG_TASK_PROBE = () => {
+  const w = window as unknown as { __longTasks: number[] };
+  w.__longTasks = [];
+  new PerformanceObserver((list) => { for (const e of list.getEntries()) w.__longTasks.push(e.duration); }).observe({ type: 'longtask', buffered: true });
+};
+
+const stepOf = async (page: Page) => Number((await page.getByTestId('step-count').textContent())?.match(/step ([\d,]+)/)?.[1]?.replace(/,/g, '') ?? '0');
+const waitForStep = (page: Page, atLeast: number, timeout = 90_000) =>
+  page.waitForFunction((n) => {
+    const m = document.querySelector('[data-testid=step-count]')?.textContent?.match(/step ([\d,]+)/);
+    return m ? Number(m[1]!.replace(/,/g, '')) >= n : false;
+  }, atLeast, { timeout });
+
+test('train a run in a worker: curves move, pause, resume, stop, checkpoint, reload and continue', { timeout: 360_000 }, async () => {
+  const person = await browser.newPerson(server.url);
+  const { page } = person;
+  await page.addInitScript(LONG_TASK_PROBE);
+  try {
+    await trainingStory(person);
+  } catch (error) {
+    await screenshot(page, 'training-failure');
+    throw new Error(`${(error as Error).message}\nPage problems: ${JSON.stringify(person.problems)}`);
+  }
+});
+
+async function trainingStory(person: Awaited<ReturnType<TestBrowser['newPerson']>>): Promise<void> {
+  const { page } = person;
+
+  // An account through the UI, then a bench and a demo corpus through the REST API.
+  await page.goto('/sign-up');
+  await page.getByLabel('Your name').fill('Tara Trainer');
+  await page.getByLabel('E-mail').fill('tara@example.org');
+  await page.getByLabel('Password', { exact: true }).fill('long-enough-1');
+  await page.getByLabel('Password again').fill('long-enough-1');
+  await page.getByRole('button', { name: 'Create account' }).click();
+  await page.waitForURL('**/benches');
+  const token = (await page.evaluate(() => localStorage.getItem('noisewright.token'))) as string;
+  const bench = await api<{ id: string }>('/benches', token, {
+    method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ name: 'Training lab' }),
+  });
+  const form = new FormData();
+  form.set('name', 'Syllable grammar');
+  form.set('options', JSON.stringify({ mergeDuplicates: true }));
+  form.set('file', new Blob([readFileSync('datasets-demo/syllable-grammar.tsv')]), 'syllable-grammar.tsv');
+  await api(`/benches/${bench.id}/corpora`, token, { method: 'POST', body: form });
+
+  // The new-run form: a small model so that a few hundred steps take well under a minute.
+  await page.goto(`/benches/${bench.id}/runs`);
+  await page.getByRole('link', { name: 'New run' }).click();
+  await page.getByRole('button', { name: 'Quick look' }).click();
+  await page.getByLabel('Run name').fill('Small syllable model');
+  await page.getByRole('combobox', { name: 'Corpus' }).click();
+  await page.getByRole('option', { name: /Syllable grammar/ }).click();
+  await page.locator('mat-step-header', { hasText: 'Model' }).click();
+  await page.getByRole('button', { name: 'Remove Coupling' }).click();
+  for (const [label, value] of [['State size', '4'], ['Embedding size', '8'], ['Flow network width', '8'], ['Encoder width', '16'],
+    ['Proposal width', '8'], ['Samples per word (K)', '2']] as const) {
+    await page.getByLabel(label, { exact: true }).fill(value);
+  }
+  await page.locator('mat-step-header', { hasText: 'Training' }).click();
+  for (const [label, value] of [['Batch size', '16'], ['Steps', '400'], ['Learning rate', '0.02'], ['Measure every (steps)', '50'],
+    ['Save checkpoint every (steps)', '100']] as const) {
+    await page.getByLabel(label, { exact: true }).fill(value);
+  }
+  await page.locator('mat-step-header', { hasText: 'Check and start' }).click();
+  const count = await page.getByTestId('parameter-count').textContent();
+  assert.match(count ?? '', /\d/, 'the parameter count is shown before training');
+  await screenshot(page, 'training-01-new-run-review');
+  await page.getByRole('button', { name: /Start training/ }).click();
+  await page.waitForURL(/\/runs\/[0-9a-f-]{36}$/);
+  const runUrl = new URL(page.url()).pathname;
+
+  // Training: the worker reports its backend; steps, speed and the curves move.
+  await page.getByTestId('engine').filter({ hasText: /WebAssembly|cpu/ }).waitFor({ timeout: 60_000 });
+  await waitForStep(page, 20);
+  await page.evaluate(() => { (window as unknown as { __longTasks: number[] }).__longTasks = []; });
+  const pointsBefore = Number(await page.locator('nw-run-curves .chart').getAttribute('data-points'));
+  await waitForStep(page, 120);
+  const pointsAfter = Number(await page.locator('nw-run-curves .chart').getAttribute('data-points'));
+  assert.ok(pointsAfter > pointsBefore, `the curves gain points while training (${pointsBefore} → ${pointsAfter})`);
+  const longTasks = await page.evaluate(() => (window as unknown as { __longTasks: number[] }).__longTasks);
+  assert.ok(longTasks.every((d) => d <= 50), `no main-thread task over 50 ms while the worker trains; saw ${JSON.stringify(longTasks)}`);
+  await page.getByTestId('samples').waitFor();
+  await screenshot(page, 'training-02-live-view');
+
+  // Pause: the step count stands still; resume: it moves again.
+  await page.getByRole('button', { name: 'Pause' }).click();
+  await page.getByTestId('run-state').filter({ hasText: 'paused' }).waitFor();
+  const pausedAt = await stepOf(page);
+  await page.waitForTimeout(1500);
+  assert.equal(await stepOf(page), pausedAt, 'no steps while paused');
+  await screenshot(page, 'training-03-paused');
+  await page.getByRole('button', { name: 'Resume' }).click();
+  await waitForStep(page, Math.max(pausedAt + 10, 210));
+
+  // Stop: a checkpoint is saved and listed with its step.
+  await page.getByRole('button', { name: 'Stop' }).click();
+  await page.getByTestId('run-state').filter({ hasText: 'stopped' }).waitFor({ timeout: 30_000 });
+  const stoppedAt = await stepOf(page);
+  assert.ok(stoppedAt >= 200, `trained at least 200 steps before stopping (${stoppedAt})`);
+  const checkpoints = page.getByTestId('checkpoints');
+  await checkpoints.getByRole('cell', { name: 'on stop' }).waitFor();
+  await checkpoints.getByRole('cell', { name: 'autosave' }).first().waitFor();
+  await screenshot(page, 'training-04-stopped-with-checkpoints');
+
+  // Reload: the server holds everything; continue from the latest checkpoint.
+  await page.reload();
+  await page.getByTestId('run-name').waitFor();
+  await page.getByTestId('run-state').filter({ hasText: 'stopped' }).waitFor();
+  const resume = page.getByTestId('train-here');
+  await resume.filter({ hasText: `Continue from step ${stoppedAt}` }).waitFor();
+  await resume.click();
+  await page.getByTestId('engine').filter({ hasText: /parameters/ }).waitFor({ timeout: 60_000 });
+  await waitForStep(page, stoppedAt + 10);
+  await screenshot(page, 'training-05-continued-after-reload');
+  await page.getByRole('button', { name: 'Stop' }).click();
+  await page.getByTestId('run-state').filter({ hasText: 'stopped' }).waitFor({ timeout: 30_000 });
+
+  // The runs table lists the run with its steps.
+  await page.goto(`/benches/${bench.id}/runs`);
+  await page.getByRole('link', { name: 'Small syllable model' }).waitFor();
+  await screenshot(page, 'training-06-run-list');
+  assert.ok(runUrl.includes(bench.id));
+  assert.deepEqual(person.problems.filter((p) => !/favicon/.test(p)), [], 'no errors in the page');
+}
