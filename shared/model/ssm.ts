@@ -6,10 +6,10 @@
 import * as tf from '@tensorflow/tfjs-core';
 import { createRng, type Rng } from '../data/random';
 import type { EncodedBatch } from '../data/encode';
-import { boundedScale } from './flows/conditioner';
 import { createFlow, type ConditionalFlow } from './flows/flow';
 import { gruStep } from './gru-cell';
 import { checkWeightShapes, ParamSet, type NamedWeights } from './params';
+import { computeLogWeights } from './ssm-log-weights';
 import { flowDimsOf, ssmCoreParamSpecs, ssmParamSpecs, validateSsmSettings, type SsmSettings } from './ssm-settings';
 
 export type { SsmSettings } from './ssm-settings';
@@ -95,7 +95,8 @@ export class StateSpaceModel {
     return tf.tidy(() => tf.logSoftmax(this.observationLogits(h)));
   }
 
-  private observationLogits(h: tf.Tensor2D): tf.Tensor2D {
+  /** Observation logits [N, V] (before the softmax). */
+  observationLogits(h: tf.Tensor2D): tf.Tensor2D {
     const p = (n: string) => this.core.get(n);
     if (this.settings.observationHidden > 0) {
       const hidden = tf.tanh(tf.add(tf.matMul(h, p('obs.w1')), p('obs.b1')));
@@ -160,58 +161,12 @@ export class StateSpaceModel {
     const seed = opts.seed ?? this.nextSeed();
     const beta = opts.klWeight ?? 1;
     if (!(beta >= 0 && beta <= 1)) throw new Error(`The warm-up weight must lie in [0, 1]; got ${beta}.`);
-    return tf.tidy(() => {
-      const { batchSize: B, maxLen: T } = batch;
-      const d = this.settings.stateSize;
-      const V = this.settings.vocabSize;
-      const N = B * k;
-      const p = (n: string) => this.core.get(n);
-      const enc = this.encodeBackward(batch); // [T, B, H]
-      const H = this.settings.encoderSize;
-      const P = this.settings.proposalHidden;
-      // Word-level inputs stay [.., B, ..] and broadcast over the K samples (rows are k*B + b, viewed as [K, B]).
-      const bProj = tf.reshape(tf.add(tf.matMul(tf.reshape(enc, [T * B, H]), p('prop.wb')), p('prop.b1')), [T, B, P]);
-      const idsT = tf.transpose(tf.tensor2d(batch.ids, [B, T], 'int32'));
-      const target = tf.cast(tf.oneHot(idsT, V), 'float32'); // [T, B, V]
-      const maskT = tf.transpose(tf.tensor2d(batch.mask, [B, T])); // [T, B]
-      const eps = tf.randomNormal([T, N, d], 0, 1, 'float32', seed);
-      let hPrev = tf.tile(tf.reshape(p('h0'), [1, d]), [N, 1]) as tf.Tensor2D;
-      let total = tf.zeros([k, B]) as tf.Tensor2D;
-      const states: tf.Tensor2D[] = [];
-      // Per-step slices of the time-major inputs, each in one kernel.
-      const bSteps = tf.unstack(bProj) as tf.Tensor2D[];
-      const targets = tf.unstack(target) as tf.Tensor2D[];
-      const masks = tf.unstack(maskT) as tf.Tensor1D[];
-      const noise = tf.unstack(eps) as tf.Tensor2D[];
-      // sum_i eps_i^2 of the proposal noise per step (no gradient flows into it), [T, N] -> T x [N].
-      const noiseSquares = tf.unstack(tf.sum(tf.square(eps), 2)) as tf.Tensor1D[];
-      const perWord = (x: tf.Tensor, width: number) => tf.reshape(x, [k, B, width]);
-      for (let t = 0; t < T; t++) {
-        // Proposal q(xi_t | h_{t-1}, b_t) = N(m, diag(s^2)), s = softplus(.) + 1e-4; reparameterised sample.
-        const pre1 = tf.add(perWord(tf.matMul(hPrev, p('prop.wh')), P), bSteps[t] as tf.Tensor2D);
-        const hidden = tf.tanh(tf.reshape(pre1, [N, P]));
-        const [mean, pre] = tf.split(tf.add(tf.matMul(hidden, p('prop.w2')), p('prop.b2')), 2, 1);
-        const std = boundedScale(pre as tf.Tensor);
-        const e = noise[t] as tf.Tensor2D;
-        const xi = tf.add(mean as tf.Tensor, tf.mul(std, e)) as tf.Tensor2D;
-        const q = this.inferenceFlow.forward(hPrev, xi); // h_t and log |det d f_q / d xi|
-        const g = this.generativeFlow.inverse(hPrev, q.y); // eps_t = f_g^{-1}(h_t) and its log-det
-        // log N(eps_t; 0, I) + logdet_g - log N(xi_t; m, s^2) + logdet_q; the -d/2 log(2 pi) terms cancel:
-        // = 0.5 * (|e|^2 - |eps_t|^2) + sum log s + logdet_g + logdet_q   (xi = m + s * e).
-        const quadratic = tf.mul(tf.sub(noiseSquares[t] as tf.Tensor1D, tf.sum(tf.square(g.z), 1)), 0.5);
-        const logDets = tf.add(tf.add(tf.sum(tf.log(std), 1), g.logdet), q.logdet);
-        const logObs = tf.sum(tf.mul(perWord(tf.logSoftmax(this.observationLogits(q.y)), V), targets[t] as tf.Tensor2D), 2);
-        const latent = tf.reshape(tf.add(quadratic, logDets), [k, B]);
-        const term = tf.add(logObs, beta === 1 ? latent : tf.mul(latent, beta));
-        total = tf.add(total, tf.mul(term, masks[t] as tf.Tensor1D)) as tf.Tensor2D; // masked steps add 0
-        if (opts.returnStates) states.push(q.y);
-        hPrev = q.y;
-      }
-      const logW = tf.transpose(total) as tf.Tensor2D;
-      if (!opts.returnStates) return { logW };
-      const st = tf.transpose(tf.reshape(tf.stack(states, 0), [T, k, B, d]), [1, 2, 0, 3]) as tf.Tensor4D;
-      return { logW, states: st };
-    });
+    return tf.tidy(() => computeLogWeights(this, batch, k, seed, beta, opts.returnStates === true));
+  }
+
+  /** A core parameter by name (for `computeLogWeights`). */
+  param(name: string): tf.Variable {
+    return this.core.get(name);
   }
 
   /** Every weight by name (core names, `gen/...`, `inf/...`), copied out of the tensors. */

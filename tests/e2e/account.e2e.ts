@@ -1,7 +1,8 @@
 /**
  * Account basics in Chromium on a development server with the demo seed: the sign-in page offers the demo
  * account, a signed-out visitor is sent to sign-in and back, the password can be changed (a wrong current
- * password is reported on its field), and sign-out ends the session.
+ * password is reported on its field), sign-out ends the session, and a forgotten password is reset through
+ * the link in the captured e-mail (once only).
  */
 import assert from 'node:assert/strict';
 import { after, before, test } from 'node:test';
@@ -21,7 +22,7 @@ after(async () => {
   await server?.stop();
 });
 
-test('demo sign-in, return to the asked page, password change and sign-out', async () => {
+test('demo sign-in, return to the asked page, password change, sign-out and password reset by e-mail', async () => {
   const { page, problems } = await browser.newPerson(server.url);
   const demo = { email: server.server.config.demoEmail, password: server.server.config.demoPassword };
 
@@ -68,12 +69,13 @@ test('demo sign-in, return to the asked page, password change and sign-out', asy
   await page.setViewportSize({ width: 390, height: 820 });
   await page.getByRole('button', { name: 'Show or hide navigation' }).click();
   await page.getByRole('navigation').getByRole('link', { name: 'Account' }).waitFor();
+  await page.waitForTimeout(500); // let the slide-in finish so the screenshot shows the final layout
   await screenshot(page, 'account-04-narrow-navigation');
   await page.getByRole('navigation').getByRole('link', { name: 'Benches' }).click();
   await page.setViewportSize({ width: 1280, height: 860 });
 
   // Sign out from the user menu; the old password no longer works, the new one does.
-  await page.getByRole('button', { name: /Demo Admin/ }).click();
+  await page.getByRole('button', { name: 'Account menu of Demo Admin' }).click();
   await page.getByRole('menuitem', { name: 'Sign out' }).click();
   await page.waitForURL('**/sign-in');
   assert.equal(await page.evaluate(() => localStorage.getItem('noisewright.token')), null);
@@ -84,6 +86,36 @@ test('demo sign-in, return to the asked page, password change and sign-out', asy
   await page.getByLabel('Password').fill(newPassword);
   await page.getByRole('button', { name: 'Sign in', exact: true }).click();
   await page.waitForURL('**/benches');
+
+  // Forgotten password: ask for a link, follow it from the captured mail, choose a new password.
+  await page.getByRole('button', { name: 'Account menu of Demo Admin' }).click();
+  await page.getByRole('menuitem', { name: 'Sign out' }).click();
+  await page.getByRole('link', { name: 'Forgot your password?' }).click();
+  await page.getByLabel('E-mail').fill(demo.email);
+  await page.getByRole('button', { name: 'Send the link' }).click();
+  await page.getByRole('status').filter({ hasText: demo.email }).waitFor();
+  assert.ok(server.server.mailbox, 'the mail stand-in should be running');
+  const mail = await server.server.mailbox.waitFor((m) => m.to.includes(demo.email) && m.text.includes('/reset-password/'));
+  const link = /https?:\/\/\S+\/reset-password\/\S+/.exec(mail.text)?.[0];
+  assert.ok(link, `the reset e-mail should contain a link, got:\n${mail.text}`);
+  await page.goto(new URL(link).pathname);
+  const thirdPassword = 'third-time-lucky-pass';
+  await page.getByLabel('New password', { exact: true }).fill(thirdPassword);
+  await page.getByLabel('New password again').fill(thirdPassword);
+  await screenshot(page, 'account-05-reset-password');
+  await page.getByRole('button', { name: 'Save the new password' }).click();
+  await page.waitForURL('**/sign-in');
+  await page.getByLabel('E-mail').fill(demo.email);
+  await page.getByLabel('Password').fill(thirdPassword);
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await page.waitForURL('**/benches');
+
+  // The link works once.
+  await page.goto(new URL(link).pathname);
+  await page.getByLabel('New password', { exact: true }).fill('yet-another-password');
+  await page.getByLabel('New password again').fill('yet-another-password');
+  await page.getByRole('button', { name: 'Save the new password' }).click();
+  await page.getByRole('alert').filter({ hasText: 'Ask for a new link' }).waitFor();
 
   assert.deepEqual(problems, [], 'the page threw no errors');
 });

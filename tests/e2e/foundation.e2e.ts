@@ -125,6 +125,10 @@ test('a bench owner invites a newcomer by e-mail and the newcomer joins the benc
   await a.page.getByRole('navigation').getByRole('link', { name: 'Corpora' }).click();
   await a.page.waitForURL(`**${benchUrl}/corpora`);
   assert.match(await a.page.getByRole('button', { name: 'Switch bench' }).innerText(), new RegExp(benchName));
+  await a.page.getByRole('navigation').getByRole('link', { name: 'Compare' }).click();
+  await a.page.waitForURL(`**${benchUrl}/compare`);
+  await a.page.getByRole('heading', { name: 'Compare' }).waitFor();
+  await screenshot(a.page, 'foundation-09-compare-area');
 
   assert.deepEqual(a.problems, [], 'person A saw no page errors');
   assert.deepEqual(b.problems, [], 'person B saw no page errors');

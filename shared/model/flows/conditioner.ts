@@ -1,6 +1,8 @@
 /**
  * The small conditioning network used inside every flow layer: one hidden `tanh` layer, then a linear
  * output. Its output columns are fused (e.g. `mu` and the pre-activation of `sigma` come from one matmul).
+ * The first layer's product with the context c is computed by the caller (`ctxPre = c W1 + b1`), so several
+ * conditioners on the same c share one matmul; `conditionerOutput` does the rest.
  */
 import * as tf from '@tensorflow/tfjs-core';
 import { glorot, zeros, type ParamSpecs } from '../params';
@@ -24,10 +26,19 @@ export function conditionerSpecs(prefix: string, inDim: number, hidden: number, 
 
 export type VariableLookup = (name: string) => tf.Variable;
 
-/** Runs the conditioner: `tanh(x W1 + b1) W2 + b2`. */
+/** The context part of a conditioner whose whole input is c: `W1` and `b1`. */
+export function contextOf(get: VariableLookup, prefix: string): { w: tf.Tensor2D; b: tf.Tensor1D } {
+  return { w: get(`${prefix}w1`) as tf.Tensor2D, b: get(`${prefix}b1`) as tf.Tensor1D };
+}
+
+/** `tanh(pre) W2 + b2` from the first layer's pre-activation. */
+export function conditionerOutput(get: VariableLookup, prefix: string, pre: tf.Tensor2D): tf.Tensor2D {
+  return tf.add(tf.matMul(tf.tanh(pre), get(`${prefix}w2`)), get(`${prefix}b2`)) as tf.Tensor2D;
+}
+
+/** Runs the conditioner on its whole input x: `tanh(x W1 + b1) W2 + b2`. */
 export function runConditioner(get: VariableLookup, prefix: string, x: tf.Tensor2D): tf.Tensor2D {
-  const hidden = tf.tanh(tf.add(tf.matMul(x, get(`${prefix}w1`)), get(`${prefix}b1`)));
-  return tf.add(tf.matMul(hidden, get(`${prefix}w2`)), get(`${prefix}b2`)) as tf.Tensor2D;
+  return conditionerOutput(get, prefix, tf.add(tf.matMul(x, get(`${prefix}w1`)), get(`${prefix}b1`)) as tf.Tensor2D);
 }
 
 /** `softplus(x) + 1e-4`: a positive scale bounded away from zero. */

@@ -4,11 +4,16 @@
  * (a learned per-dimension scale, so the exponent stays bounded); `log |det dy/dz| = sum (1-m)*s`.
  * Inverse: `z = m*y + (1-m)*((y - t)*exp(-s))` with `(s, t)` from `m*y` (which equals `m*z`).
  * The mask alternates halves from one coupling layer to the next (`parity`).
+ *
+ * Evaluation order (same values, fewer kernels): the mask is folded into the weights once per `prepare` —
+ * `[m*z, c] W1 = z (diag(m) W1z) + c W1c`, and the output columns of s and t are multiplied by (1-m) — so s and t
+ * are exactly 0 where m = 1, and `y = z*exp(s) + t` equals the masked formula entry by entry (there it gives
+ * z*1 + 0 = z); likewise `z = (y - t)*exp(-s)` for the inverse.
  */
 import * as tf from '@tensorflow/tfjs-core';
 import { constant, type ParamSpecs } from '../params';
-import { conditionerSpecs, runConditioner, type VariableLookup } from './conditioner';
-import type { FlowDims, FlowForward, FlowInverse, FlowLayer } from './flow-layer';
+import { conditionerSpecs, type VariableLookup } from './conditioner';
+import type { FlowDims, FlowLayer, PreparedLayer } from './flow-layer';
 
 /** The mask of a coupling layer: parity 0 keeps the first floor(d/2) entries fixed, parity 1 the rest. */
 export function couplingMask(dim: number, parity: number): Float32Array {
@@ -18,10 +23,20 @@ export function couplingMask(dim: number, parity: number): Float32Array {
   return m;
 }
 
+interface CouplingConstants {
+  /** m as a column [d, 1] (scales the rows of W1 that see z). */
+  keptRows: tf.Tensor2D;
+  /** 1 - m, [d]. */
+  free: tf.Tensor1D;
+  /** [1 - m, 1 - m], [2d] (scales the s and t output columns). */
+  freeTwice: tf.Tensor1D;
+}
+
 export class CouplingFlow implements FlowLayer {
   readonly kind = 'coupling' as const;
   private readonly mask: Float32Array;
   private readonly inverseMask: Float32Array;
+  private constants: CouplingConstants | null = null;
 
   constructor(private readonly dims: FlowDims, parity: number) {
     this.mask = couplingMask(dims.dim, parity);
@@ -36,27 +51,52 @@ export class CouplingFlow implements FlowLayer {
     };
   }
 
-  /** (s, t) restricted to the transformed entries (zero where the mask is 1). */
-  private shiftScale(get: VariableLookup, c: tf.Tensor2D, kept: tf.Tensor2D): { s: tf.Tensor2D; t: tf.Tensor2D } {
-    const out = runConditioner(get, 'net.', tf.concat([kept, c], 1));
-    const [sRaw, t] = tf.split(out, 2, 1) as [tf.Tensor2D, tf.Tensor2D];
-    const free = tf.tensor1d(this.inverseMask);
-    return { s: tf.mul(tf.mul(tf.tanh(sRaw), get('scale')), free), t: tf.mul(t, free) };
+  allocate(): void {
+    if (this.constants) return;
+    const d = this.dims.dim;
+    const twice = new Float32Array(2 * d);
+    twice.set(this.inverseMask, 0);
+    twice.set(this.inverseMask, d);
+    this.constants = {
+      keptRows: tf.keep(tf.tensor2d(this.mask, [d, 1])),
+      free: tf.keep(tf.tensor1d(this.inverseMask)),
+      freeTwice: tf.keep(tf.tensor1d(twice)),
+    };
   }
 
-  forward(get: VariableLookup, c: tf.Tensor2D, z: tf.Tensor2D): FlowForward {
-    const kept = tf.mul(z, tf.tensor1d(this.mask)) as tf.Tensor2D;
-    const { s, t } = this.shiftScale(get, c, kept);
-    const free = tf.tensor1d(this.inverseMask);
-    const y = tf.add(kept, tf.mul(free, tf.add(tf.mul(z, tf.exp(s)), t)));
-    return { y: y as tf.Tensor2D, logdet: tf.sum(s, 1) };
+  dispose(): void {
+    if (this.constants) tf.dispose([this.constants.keptRows, this.constants.free, this.constants.freeTwice]);
+    this.constants = null;
   }
 
-  inverse(get: VariableLookup, c: tf.Tensor2D, y: tf.Tensor2D): FlowInverse {
-    const kept = tf.mul(y, tf.tensor1d(this.mask)) as tf.Tensor2D;
-    const { s, t } = this.shiftScale(get, c, kept);
-    const free = tf.tensor1d(this.inverseMask);
-    const z = tf.add(kept, tf.mul(free, tf.mul(tf.sub(y, t), tf.exp(tf.neg(s)))));
-    return { z: z as tf.Tensor2D, logdet: tf.neg(tf.sum(s, 1)) as tf.Tensor1D };
+  contextWeights(get: VariableLookup): { w: tf.Tensor2D; b: tf.Tensor1D } {
+    const { dim: d, ctxDim, hidden } = this.dims;
+    return { w: tf.slice(get('net.w1') as tf.Tensor2D, [d, 0], [ctxDim, hidden]), b: get('net.b1') as tf.Tensor1D };
+  }
+
+  prepare(get: VariableLookup): PreparedLayer {
+    this.allocate();
+    const k = this.constants as CouplingConstants;
+    const { dim: d, hidden } = this.dims;
+    const wz = tf.mul(tf.slice(get('net.w1'), [0, 0], [d, hidden]), k.keptRows);
+    const w2 = tf.mul(get('net.w2'), k.freeTwice);
+    const b2 = tf.mul(get('net.b2'), k.freeTwice);
+    const scale = tf.mul(get('scale'), k.free);
+    /** (s, t), both exactly 0 where the mask is 1; `x` is z (forward) or y (inverse): m*x is the same. */
+    const shiftScale = (ctxPre: tf.Tensor2D, x: tf.Tensor2D) => {
+      const h = tf.tanh(tf.add(tf.matMul(x, wz), ctxPre));
+      const [sRaw, t] = tf.split(tf.add(tf.matMul(h, w2), b2), 2, 1) as [tf.Tensor2D, tf.Tensor2D];
+      return { s: tf.mul(tf.tanh(sRaw), scale) as tf.Tensor2D, t };
+    };
+    return {
+      forward: (ctxPre, z) => {
+        const { s, t } = shiftScale(ctxPre, z);
+        return { y: tf.add(tf.mul(z, tf.exp(s)), t) as tf.Tensor2D, logdet: tf.sum(s, 1) };
+      },
+      inverse: (ctxPre, y) => {
+        const { s, t } = shiftScale(ctxPre, y);
+        return { z: tf.mul(tf.sub(y, t), tf.exp(tf.neg(s))) as tf.Tensor2D, logdet: tf.neg(tf.sum(s, 1)) as tf.Tensor1D };
+      },
+    };
   }
 }

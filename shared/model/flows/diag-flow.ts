@@ -4,8 +4,8 @@
  */
 import * as tf from '@tensorflow/tfjs-core';
 import type { ParamSpecs } from '../params';
-import { boundedScale, conditionerSpecs, runConditioner, SOFTPLUS_INVERSE_OF_ONE, type VariableLookup } from './conditioner';
-import type { FlowDims, FlowForward, FlowInverse, FlowLayer } from './flow-layer';
+import { boundedScale, conditionerOutput, conditionerSpecs, contextOf, SOFTPLUS_INVERSE_OF_ONE, type VariableLookup } from './conditioner';
+import type { FlowDims, FlowLayer, PreparedLayer } from './flow-layer';
 
 export class DiagFlow implements FlowLayer {
   readonly kind = 'diag' as const;
@@ -17,19 +17,28 @@ export class DiagFlow implements FlowLayer {
     return conditionerSpecs('net.', this.dims.ctxDim, this.dims.hidden, 2 * d, bias);
   }
 
-  private muSigma(get: VariableLookup, c: tf.Tensor2D): { mu: tf.Tensor2D; sigma: tf.Tensor2D } {
-    const out = runConditioner(get, 'net.', c);
-    const [mu, pre] = tf.split(out, 2, 1) as [tf.Tensor2D, tf.Tensor2D];
-    return { mu, sigma: boundedScale(pre) as tf.Tensor2D };
+  contextWeights(get: VariableLookup): { w: tf.Tensor2D; b: tf.Tensor1D } {
+    return contextOf(get, 'net.');
   }
 
-  forward(get: VariableLookup, c: tf.Tensor2D, z: tf.Tensor2D): FlowForward {
-    const { mu, sigma } = this.muSigma(get, c);
-    return { y: tf.add(mu, tf.mul(sigma, z)), logdet: tf.sum(tf.log(sigma), 1) };
+  prepare(get: VariableLookup): PreparedLayer {
+    const muSigma = (ctxPre: tf.Tensor2D) => {
+      const [mu, pre] = tf.split(conditionerOutput(get, 'net.', ctxPre), 2, 1) as [tf.Tensor2D, tf.Tensor2D];
+      return { mu, sigma: boundedScale(pre) as tf.Tensor2D };
+    };
+    return {
+      forward: (ctxPre, z) => {
+        const { mu, sigma } = muSigma(ctxPre);
+        return { y: tf.add(mu, tf.mul(sigma, z)), logdet: tf.sum(tf.log(sigma), 1) };
+      },
+      inverse: (ctxPre, y) => {
+        const { mu, sigma } = muSigma(ctxPre);
+        return { z: tf.div(tf.sub(y, mu), sigma), logdet: tf.neg(tf.sum(tf.log(sigma), 1)) as tf.Tensor1D };
+      },
+    };
   }
 
-  inverse(get: VariableLookup, c: tf.Tensor2D, y: tf.Tensor2D): FlowInverse {
-    const { mu, sigma } = this.muSigma(get, c);
-    return { z: tf.div(tf.sub(y, mu), sigma), logdet: tf.neg(tf.sum(tf.log(sigma), 1)) as tf.Tensor1D };
-  }
+  allocate(): void {}
+
+  dispose(): void {}
 }

@@ -17,12 +17,28 @@ export interface FlowInverse {
   logdet: tf.Tensor1D;
 }
 
+/**
+ * A layer with its per-call constants in place (weights rearranged once per `prepare`, not once per step).
+ * `ctxPre` is the layer's context pre-activation `c W1c + b1`, [N, hidden]: the part of its conditioner's first
+ * layer that depends on c only, so a caller can compute it for many layers (and flows) in one matmul.
+ */
+export interface PreparedLayer {
+  forward(ctxPre: tf.Tensor2D, z: tf.Tensor2D): FlowForward;
+  inverse(ctxPre: tf.Tensor2D, y: tf.Tensor2D): FlowInverse;
+}
+
 export interface FlowLayer {
   readonly kind: FlowKind;
   /** Parameter specs with names local to this layer (the stack adds a `<index>.<kind>.` prefix). */
   specs(): ParamSpecs;
-  forward(get: VariableLookup, c: tf.Tensor2D, z: tf.Tensor2D): FlowForward;
-  inverse(get: VariableLookup, c: tf.Tensor2D, y: tf.Tensor2D): FlowInverse;
+  /** Rows of the first-layer weight acting on c, [ctxDim, hidden], and the first-layer bias [hidden]. */
+  contextWeights(get: VariableLookup): { w: tf.Tensor2D; b: tf.Tensor1D };
+  /** Call inside a tf.tidy; the result is valid while that scope lives. */
+  prepare(get: VariableLookup): PreparedLayer;
+  /** Creates the layer's constant tensors (if any); called once by the owning stack. */
+  allocate(): void;
+  /** Frees the constant tensors made by `allocate`. */
+  dispose(): void;
 }
 
 /** Shapes shared by all layers of one flow. */

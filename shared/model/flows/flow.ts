@@ -9,7 +9,7 @@ import type { Rng } from '../../data/random';
 import { ParamSet, prefixSpecs, type NamedWeights, type ParamSpecs } from '../params';
 import { CouplingFlow } from './coupling-flow';
 import { DiagFlow } from './diag-flow';
-import type { FlowDims, FlowForward, FlowInverse, FlowKind, FlowLayer } from './flow-layer';
+import type { FlowDims, FlowForward, FlowInverse, FlowKind, FlowLayer, PreparedLayer } from './flow-layer';
 import { ShiftFlow } from './shift-flow';
 import { TrilFlow } from './tril-flow';
 
@@ -34,9 +34,24 @@ export interface ConditionalFlow {
   forward(c: tf.Tensor2D, z: tf.Tensor2D): FlowForward;
   /** `z = f^{-1}(c, y)` with `log |det dz/dy|` per row (= minus the forward log-det at z). */
   inverse(c: tf.Tensor2D, y: tf.Tensor2D): FlowInverse;
+  /**
+   * The flow with its per-call constants in place, for running many steps on the same weights (call inside a
+   * tf.tidy). Its conditioners' products with c are left to the caller: `ctxPre = c contextW + contextB`.
+   */
+  prepare(): PreparedFlow;
   getWeights(): NamedWeights;
   setWeights(weights: NamedWeights): void;
   dispose(): void;
+}
+
+/** A flow with its constants in place; `ctxPre = c contextW + contextB` ([N, contextWidth]) stands for c. */
+export interface PreparedFlow {
+  /** [ctxDim, contextWidth]: the first-layer weights of every layer's conditioner that act on c, side by side. */
+  readonly contextW: tf.Tensor2D;
+  readonly contextB: tf.Tensor1D;
+  readonly contextWidth: number;
+  forward(ctxPre: tf.Tensor2D, z: tf.Tensor2D): FlowForward;
+  inverse(ctxPre: tf.Tensor2D, y: tf.Tensor2D): FlowInverse;
 }
 
 /** Throws a clear error if `spec` is not a non-empty list of known flow layers. */
@@ -87,6 +102,7 @@ class FlowStack implements ConditionalFlow {
 
   constructor(readonly spec: readonly FlowSpec[], readonly dims: FlowDims, rng: Rng) {
     this.layers = buildLayers(spec, dims);
+    for (const layer of this.layers) layer.allocate();
     this.params = new ParamSet(flowParamSpecs(spec, dims), rng);
     this.variables = this.params.list();
     this.variableNames = this.params.nameList;
@@ -100,26 +116,49 @@ class FlowStack implements ConditionalFlow {
     return this.params.parameterCount;
   }
 
+  prepare(): PreparedFlow {
+    const layers = this.layers.map((layer, i) => layer.prepare(this.lookups[i] as (n: string) => tf.Variable));
+    const ctx = this.layers.map((layer, i) => layer.contextWeights(this.lookups[i] as (n: string) => tf.Variable));
+    const single = ctx.length === 1;
+    const first = ctx[0] as { w: tf.Tensor2D; b: tf.Tensor1D };
+    const parts = (ctxPre: tf.Tensor2D): tf.Tensor2D[] => (single ? [ctxPre] : (tf.split(ctxPre, layers.length, 1) as tf.Tensor2D[]));
+    return {
+      contextW: single ? first.w : tf.concat(ctx.map((x) => x.w), 1),
+      contextB: single ? first.b : tf.concat(ctx.map((x) => x.b)),
+      contextWidth: this.dims.hidden * layers.length,
+      forward: (ctxPre, z) => {
+        const pre = parts(ctxPre);
+        let y = z;
+        let logdet: tf.Tensor1D | null = null;
+        layers.forEach((layer, i) => {
+          const r = layer.forward(pre[i] as tf.Tensor2D, y);
+          y = r.y;
+          logdet = logdet ? (tf.add(logdet, r.logdet) as tf.Tensor1D) : r.logdet;
+        });
+        return { y, logdet: logdet as unknown as tf.Tensor1D };
+      },
+      inverse: (ctxPre, y) => {
+        const pre = parts(ctxPre);
+        let z = y;
+        let logdet: tf.Tensor1D | null = null;
+        for (let i = layers.length - 1; i >= 0; i--) {
+          const r = (layers[i] as PreparedLayer).inverse(pre[i] as tf.Tensor2D, z);
+          z = r.z;
+          logdet = logdet ? (tf.add(logdet, r.logdet) as tf.Tensor1D) : r.logdet;
+        }
+        return { z, logdet: logdet as unknown as tf.Tensor1D };
+      },
+    };
+  }
+
   forward(c: tf.Tensor2D, z: tf.Tensor2D): FlowForward {
-    let y = z;
-    let logdet: tf.Tensor1D | null = null;
-    this.layers.forEach((layer, i) => {
-      const r = layer.forward(this.lookups[i] as (n: string) => tf.Variable, c, y);
-      y = r.y;
-      logdet = logdet ? (tf.add(logdet, r.logdet) as tf.Tensor1D) : r.logdet;
-    });
-    return { y, logdet: logdet as unknown as tf.Tensor1D };
+    const p = this.prepare();
+    return p.forward(tf.add(tf.matMul(c, p.contextW), p.contextB) as tf.Tensor2D, z);
   }
 
   inverse(c: tf.Tensor2D, y: tf.Tensor2D): FlowInverse {
-    let z = y;
-    let logdet: tf.Tensor1D | null = null;
-    for (let i = this.layers.length - 1; i >= 0; i--) {
-      const r = (this.layers[i] as FlowLayer).inverse(this.lookups[i] as (n: string) => tf.Variable, c, z);
-      z = r.z;
-      logdet = logdet ? (tf.add(logdet, r.logdet) as tf.Tensor1D) : r.logdet;
-    }
-    return { z, logdet: logdet as unknown as tf.Tensor1D };
+    const p = this.prepare();
+    return p.inverse(tf.add(tf.matMul(c, p.contextW), p.contextB) as tf.Tensor2D, y);
   }
 
   getWeights(): NamedWeights {
@@ -131,6 +170,7 @@ class FlowStack implements ConditionalFlow {
   }
 
   dispose(): void {
+    for (const layer of this.layers) layer.dispose();
     this.params.dispose();
   }
 }

@@ -1,8 +1,8 @@
 /** Shift flow: `y = z + mu(c)`; log-determinant 0 (MODEL.md section 3). */
 import * as tf from '@tensorflow/tfjs-core';
 import type { ParamSpecs } from '../params';
-import { conditionerSpecs, runConditioner, type VariableLookup } from './conditioner';
-import type { FlowDims, FlowForward, FlowInverse, FlowLayer } from './flow-layer';
+import { conditionerOutput, conditionerSpecs, contextOf, type VariableLookup } from './conditioner';
+import type { FlowDims, FlowLayer, PreparedLayer } from './flow-layer';
 
 export class ShiftFlow implements FlowLayer {
   readonly kind = 'shift' as const;
@@ -12,13 +12,18 @@ export class ShiftFlow implements FlowLayer {
     return conditionerSpecs('mu.', this.dims.ctxDim, this.dims.hidden, this.dims.dim);
   }
 
-  forward(get: VariableLookup, c: tf.Tensor2D, z: tf.Tensor2D): FlowForward {
-    const mu = runConditioner(get, 'mu.', c);
-    return { y: tf.add(z, mu), logdet: tf.zeros([z.shape[0]]) };
+  contextWeights(get: VariableLookup): { w: tf.Tensor2D; b: tf.Tensor1D } {
+    return contextOf(get, 'mu.');
   }
 
-  inverse(get: VariableLookup, c: tf.Tensor2D, y: tf.Tensor2D): FlowInverse {
-    const mu = runConditioner(get, 'mu.', c);
-    return { z: tf.sub(y, mu), logdet: tf.zeros([y.shape[0]]) };
+  prepare(get: VariableLookup): PreparedLayer {
+    return {
+      forward: (ctxPre, z) => ({ y: tf.add(z, conditionerOutput(get, 'mu.', ctxPre)), logdet: tf.zeros([z.shape[0]]) }),
+      inverse: (ctxPre, y) => ({ z: tf.sub(y, conditionerOutput(get, 'mu.', ctxPre)), logdet: tf.zeros([y.shape[0]]) }),
+    };
   }
+
+  allocate(): void {}
+
+  dispose(): void {}
 }

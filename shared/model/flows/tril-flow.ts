@@ -6,8 +6,8 @@
  */
 import * as tf from '@tensorflow/tfjs-core';
 import type { ParamSpecs } from '../params';
-import { boundedScale, conditionerSpecs, runConditioner, SOFTPLUS_INVERSE_OF_ONE, type VariableLookup } from './conditioner';
-import type { FlowDims, FlowForward, FlowInverse, FlowLayer } from './flow-layer';
+import { boundedScale, conditionerOutput, conditionerSpecs, contextOf, SOFTPLUS_INVERSE_OF_ONE, type VariableLookup } from './conditioner';
+import type { FlowDims, FlowLayer, PreparedLayer } from './flow-layer';
 
 interface TriangularParts {
   mu: tf.Tensor2D;
@@ -23,6 +23,7 @@ export class TrilFlow implements FlowLayer {
   private readonly pickColumn: Float32Array;
   /** One-hot [P, d]: row k adds into output row i for lower entry k = (i, j). */
   private readonly addToRow: Float32Array;
+  private constants: { pick: tf.Tensor2D; add: tf.Tensor2D } | null = null;
 
   constructor(private readonly dims: FlowDims) {
     const d = dims.dim;
@@ -40,16 +41,30 @@ export class TrilFlow implements FlowLayer {
     }
   }
 
+  allocate(): void {
+    if (this.constants || this.lowerCount === 0) return;
+    const d = this.dims.dim;
+    const P = this.lowerCount;
+    this.constants = {
+      pick: tf.keep(tf.tensor2d(this.pickColumn, [d, P])),
+      add: tf.keep(tf.tensor2d(this.addToRow, [P, d])),
+    };
+  }
+
+  dispose(): void {
+    if (this.constants) tf.dispose([this.constants.pick, this.constants.add]);
+    this.constants = null;
+  }
+
   /**
    * `S z` for the strictly-lower part S without building S: gather z_j per entry, scale by the entry, and sum
    * into its row — two small matmuls with constant one-hot matrices (no gather op, whose gradient the WASM
    * backend lacks).
    */
   private lowerTimes(lower: tf.Tensor2D, z: tf.Tensor2D): tf.Tensor2D {
-    const d = this.dims.dim;
-    const P = this.lowerCount;
-    const picked = tf.matMul(z, tf.tensor2d(this.pickColumn, [d, P]));
-    return tf.matMul(tf.mul(lower, picked), tf.tensor2d(this.addToRow, [P, d]));
+    this.allocate();
+    const k = this.constants as { pick: tf.Tensor2D; add: tf.Tensor2D };
+    return tf.matMul(tf.mul(lower, tf.matMul(z, k.pick)), k.add);
   }
 
   specs(): ParamSpecs {
@@ -62,37 +77,42 @@ export class TrilFlow implements FlowLayer {
     return conditionerSpecs('net.', this.dims.ctxDim, this.dims.hidden, 2 * d + this.lowerCount, bias);
   }
 
-  private parts(get: VariableLookup, c: tf.Tensor2D): TriangularParts {
+  contextWeights(get: VariableLookup): { w: tf.Tensor2D; b: tf.Tensor1D } {
+    return contextOf(get, 'net.');
+  }
+
+  private parts(get: VariableLookup, ctxPre: tf.Tensor2D): TriangularParts {
     const d = this.dims.dim;
-    const n = c.shape[0];
-    const out = runConditioner(get, 'net.', c);
-    const mu = tf.slice(out, [0, 0], [n, d]) as tf.Tensor2D;
-    const sigma = boundedScale(tf.slice(out, [0, d], [n, d])) as tf.Tensor2D;
-    if (this.lowerCount === 0) return { mu, sigma, lower: null };
-    const lower = tf.slice(out, [0, 2 * d], [n, this.lowerCount]) as tf.Tensor2D;
-    return { mu, sigma, lower };
-  }
-
-  forward(get: VariableLookup, c: tf.Tensor2D, z: tf.Tensor2D): FlowForward {
-    const { mu, sigma, lower } = this.parts(get, c);
-    let y = tf.add(mu, tf.mul(sigma, z));
-    if (lower) y = tf.add(y, this.lowerTimes(lower, z));
-    return { y: y as tf.Tensor2D, logdet: tf.sum(tf.log(sigma), 1) };
-  }
-
-  /**
-   * Forward substitution written as `d - 1` vectorised sweeps `z <- (r - S z) / sigma` (S strictly lower):
-   * after sweep k the first k + 1 entries equal those of row-by-row substitution, so d - 1 sweeps are exact.
-   */
-  inverse(get: VariableLookup, c: tf.Tensor2D, y: tf.Tensor2D): FlowInverse {
-    const { mu, sigma, lower } = this.parts(get, c);
-    const r = tf.sub(y, mu);
-    let z = tf.div(r, sigma) as tf.Tensor2D;
-    if (lower) {
-      for (let k = 1; k < this.dims.dim; k++) {
-        z = tf.div(tf.sub(r, this.lowerTimes(lower, z)), sigma) as tf.Tensor2D;
-      }
+    const out = conditionerOutput(get, 'net.', ctxPre);
+    if (this.lowerCount === 0) {
+      const [mu, pre] = tf.split(out, 2, 1) as [tf.Tensor2D, tf.Tensor2D];
+      return { mu, sigma: boundedScale(pre) as tf.Tensor2D, lower: null };
     }
-    return { z, logdet: tf.neg(tf.sum(tf.log(sigma), 1)) as tf.Tensor1D };
+    const [mu, pre, lower] = tf.split(out, [d, d, this.lowerCount], 1) as [tf.Tensor2D, tf.Tensor2D, tf.Tensor2D];
+    return { mu, sigma: boundedScale(pre) as tf.Tensor2D, lower };
+  }
+
+  prepare(get: VariableLookup): PreparedLayer {
+    return {
+      forward: (ctxPre, z) => {
+        const { mu, sigma, lower } = this.parts(get, ctxPre);
+        let y = tf.add(mu, tf.mul(sigma, z));
+        if (lower) y = tf.add(y, this.lowerTimes(lower, z));
+        return { y: y as tf.Tensor2D, logdet: tf.sum(tf.log(sigma), 1) };
+      },
+      /**
+       * Forward substitution written as `d - 1` vectorised sweeps `z <- (r - S z) / sigma` (S strictly lower):
+       * after sweep k the first k + 1 entries equal those of row-by-row substitution, so d - 1 sweeps are exact.
+       */
+      inverse: (ctxPre, y) => {
+        const { mu, sigma, lower } = this.parts(get, ctxPre);
+        const r = tf.sub(y, mu);
+        let z = tf.div(r, sigma) as tf.Tensor2D;
+        if (lower) {
+          for (let k = 1; k < this.dims.dim; k++) z = tf.div(tf.sub(r, this.lowerTimes(lower, z)), sigma) as tf.Tensor2D;
+        }
+        return { z, logdet: tf.neg(tf.sum(tf.log(sigma), 1)) as tf.Tensor1D };
+      },
+    };
   }
 }

@@ -61,8 +61,10 @@ export class CorporaApi {
     return firstValueFrom(this.http.patch<CorpusDetail>(`${base(benchId)}/${encodeURIComponent(corpusId)}`, changes));
   }
 
-  remove(benchId: string, corpusId: string): Promise<void> {
-    return firstValueFrom(this.http.delete<void>(`${base(benchId)}/${encodeURIComponent(corpusId)}`));
+  /** `confirmArchivedRuns`: the caller knows archived runs use the corpus and deletes it anyway. */
+  remove(benchId: string, corpusId: string, confirmArchivedRuns = false): Promise<void> {
+    const params = confirmArchivedRuns ? new HttpParams().set('confirmArchivedRuns', 'true') : undefined;
+    return firstValueFrom(this.http.delete<void>(`${base(benchId)}/${encodeURIComponent(corpusId)}`, { params }));
   }
 
   /** The export as a Blob (the request needs the sign-in token, so a plain link would not work). */

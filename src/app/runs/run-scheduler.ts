@@ -1,17 +1,20 @@
 import { Injectable, OnDestroy, computed, inject, signal } from '@angular/core';
 import { proxy } from 'comlink';
 import type { RunDto } from '../../../shared/api/runs';
-import { messageOf } from '../core/api-error';
+import { ApiError, messageOf } from '../core/api-error';
 import { TRAINER_FACTORY, fromBoundaryError, type TrainerHandle } from '../workers/trainer-client';
 import type { TrainingOutcome, TrainingProgress } from '../workers/trainer-api';
 import { LiveRun, type CurvePoint } from './live-run';
 import { trainerSettingsOf, trainingSetOf } from './run-trainer-settings';
 import { RunsApi } from './runs-api';
 
-const FLUSH_EVERY_MS = 2000;
+const FLUSH_EVERY_MS = 5000;
 const FLUSH_AT_POINTS = 500;
 
-interface Slot { live: LiveRun; handle: TrainerHandle | null; buffer: CurvePoint[]; lastFlush: number; saving: boolean; nextSave: number }
+interface Slot {
+  live: LiveRun; handle: TrainerHandle | null; buffer: CurvePoint[]; lastFlush: number; saving: boolean; nextSave: number;
+  best: { bits: number; step: number } | null;
+}
 
 /**
  * Trains runs in this tab, one dedicated worker each, at most `limit` at once (hardware threads minus one, at
@@ -42,7 +45,7 @@ export class RunScheduler implements OnDestroy {
     if (existing && (existing.live.isActive || existing.live.state() === 'waiting')) return existing.live;
     const live = new LiveRun(benchId, run, fromCheckpointId);
     this.slots.delete(run.id);
-    this.slots.set(run.id, { live, handle: null, buffer: [], lastFlush: performance.now(), saving: false, nextSave: 0 });
+    this.slots.set(run.id, { live, handle: null, buffer: [], lastFlush: performance.now(), saving: false, nextSave: 0, best: null });
     this.version.update((v) => v + 1);
     await this.api.update(benchId, run.id, { status: 'queued', statusReason: null }).catch(() => undefined);
     this.pump();
@@ -117,7 +120,7 @@ export class RunScheduler implements OnDestroy {
       const outcome = await slot.handle.api.start(proxy((p: TrainingProgress) => this.onProgress(slot, p)));
       await this.finish(slot, outcome);
     } catch (error) {
-      const problem = error instanceof Error && error.name === 'ApiError' ? messageOf(error) : fromBoundaryError(error).message;
+      const problem = error instanceof ApiError ? messageOf(error) : fromBoundaryError(error).message;
       live.problem.set(problem);
       live.state.set('failed');
       await this.api.update(benchId, run.id, { status: 'failed', statusReason: problem.slice(0, 500) }).catch(() => undefined);
@@ -130,6 +133,10 @@ export class RunScheduler implements OnDestroy {
     const { live } = slot;
     live.progress.set(p);
     if (p.evaluation && p.evaluation.samples.length > 0) live.samples.update((old) => [...p.evaluation!.samples, ...old].slice(0, 30));
+    const e = p.evaluation;
+    if (e && Number.isFinite(e.validationBitsPerChar) && (!slot.best || e.validationBitsPerChar < slot.best.bits)) {
+      slot.best = { bits: e.validationBitsPerChar, step: e.step };
+    }
     const points = LiveRun.pointsOf(p);
     live.points.next(points);
     slot.buffer.push(...points);
@@ -173,7 +180,7 @@ export class RunScheduler implements OnDestroy {
           ...extra, stepsDone: p.step,
           summary: {
             lastBoundBitsPerChar: p.trainBitsPerChar, lastIsBound: p.isBound, wordsPerSecond: Math.max(0, p.wordsPerSecond),
-            ...(p.evaluation ? { bestValidationBitsPerChar: p.evaluation.validationBitsPerChar, bestValidationStep: p.evaluation.step } : {}),
+            ...(slot.best ? { bestValidationBitsPerChar: slot.best.bits, bestValidationStep: slot.best.step } : {}),
           },
         });
       } else if (extra.status) {
@@ -186,6 +193,9 @@ export class RunScheduler implements OnDestroy {
 
   private async finish(slot: Slot, outcome: TrainingOutcome): Promise<void> {
     const { live } = slot;
+    // Progress messages are throttled: show the step training really ended at.
+    const last = live.progress();
+    if (last && last.step !== outcome.step) live.progress.set({ ...last, step: outcome.step, evaluation: undefined });
     try {
       await this.saveCheckpoint(slot, 'stop');
     } catch (error) {

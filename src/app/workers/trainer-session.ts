@@ -16,8 +16,8 @@ import type {
 export interface BackendReport { backend: string; simd: boolean; threads: number }
 
 const YIELD_EVERY_MS = 25;
-/** At most two progress messages a second keep the page's main thread nearly idle. */
-const PROGRESS_EVERY_MS = 500;
+/** One progress message a second keeps the page's main thread nearly idle. */
+const PROGRESS_EVERY_MS = 1000;
 
 const yieldToEvents = () => new Promise<void>((resolve) => setTimeout(resolve, 0));
 

@@ -7,6 +7,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { Router, RouterLink } from '@angular/router';
 import { CurrentBench } from '../../benches/current-bench';
 import { ApiError, messageOf } from '../../core/api-error';
+import { ErrorCode } from '../../core/api-types';
 import { Notice } from '../../core/notice';
 import { ConfirmDialog, type ConfirmDialogData } from '../../ui/confirm-dialog/confirm-dialog';
 import { CorporaApi, type CorpusDetail, type SplitName } from '../corpora-api';
@@ -81,16 +82,27 @@ export class CorpusDetailPage {
       confirmLabel: 'Delete corpus',
       destructive: true,
     };
-    this.dialog.open(ConfirmDialog, { data }).afterClosed().subscribe(async (confirmed) => {
-      if (confirmed !== true) return;
-      try {
-        await this.api.remove(this.benchId(), corpus.id);
-        this.notice.done(`Deleted "${corpus.name}".`);
-        await this.router.navigate(['/benches', this.benchId(), 'corpora']);
-      } catch (error) {
-        this.problem.set(`"${corpus.name}" was not deleted. ${messageOf(error)}`);
-      }
+    this.dialog.open(ConfirmDialog, { data }).afterClosed().subscribe((confirmed) => {
+      if (confirmed === true) void this.remove(corpus, false);
     });
+  }
+
+  private async remove(corpus: CorpusDetail, confirmArchivedRuns: boolean): Promise<void> {
+    try {
+      await this.api.remove(this.benchId(), corpus.id, confirmArchivedRuns);
+      this.notice.done(`Deleted "${corpus.name}".`);
+      await this.router.navigate(['/benches', this.benchId(), 'corpora']);
+    } catch (error) {
+      // Only archived runs use it: the server wants an explicit second confirmation.
+      if (!confirmArchivedRuns && error instanceof ApiError && error.code === ErrorCode.CorpusInUse && /archived run/.test(error.message)) {
+        const data: ConfirmDialogData = { title: 'Archived runs use this corpus', message: error.message, confirmLabel: 'Delete anyway', destructive: true };
+        this.dialog.open(ConfirmDialog, { data }).afterClosed().subscribe((again) => {
+          if (again === true) void this.remove(corpus, true);
+        });
+        return;
+      }
+      this.problem.set(`"${corpus.name}" was not deleted. ${messageOf(error)}`);
+    }
   }
 
   protected async exportTsv(corpus: CorpusDetail): Promise<void> {

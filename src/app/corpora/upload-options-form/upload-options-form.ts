@@ -30,7 +30,7 @@ const sharesAddUp: ValidatorFn = (group: AbstractControl): ValidationErrors | nu
   styles: `
     .group { border: 0; padding: 0; margin: 0 0 8px; }
     .group legend { font: var(--mat-sys-title-small); margin-bottom: 4px; }
-    .share { width: 130px; } .wide { width: 100%; max-width: 420px; } .narrow { width: 170px; }
+    .share { width: 130px; } .wide { width: 100%; max-width: 420px; } .narrow { width: 200px; }
     .checks { display: flex; flex-wrap: wrap; gap: 0 16px; margin-bottom: 8px; }
     .sum-error { color: var(--mat-sys-error); font: var(--mat-sys-body-small); margin: -8px 0 8px; }
   `,

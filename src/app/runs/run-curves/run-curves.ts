@@ -9,7 +9,7 @@ import { SERIES } from '../live-run';
 
 echarts.use([LineChart, GridComponent, LegendComponent, TooltipComponent, CanvasRenderer]);
 
-const RENDER_EVERY_MS = 1000;
+const RENDER_EVERY_MS = 2000;
 
 /** Our palette (PRODUCT.md look): deep teal, amber for live activity, and two calm companions. */
 const LINES = [
@@ -99,7 +99,7 @@ export class RunCurves {
     this.scheduleRender();
   }
 
-  /** Redraws at most once a second while points stream in (each redraw is one short main-thread task). */
+  /** Redraws at most every two seconds while points stream in (each redraw is one short main-thread task). */
   private scheduleRender(): void {
     if (this.renderTimer !== null) return;
     const wait = Math.max(0, RENDER_EVERY_MS - (performance.now() - this.lastRender));

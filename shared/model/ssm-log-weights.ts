@@ -1,0 +1,82 @@
+/**
+ * The per-sample log-weight log W of MODEL.md section 5, for K proposal samples per word, written for few
+ * kernel launches (per-kernel overhead dominates at these sizes):
+ * - every conditioner's product with h_{t-1} (proposal and each layer of both flows) is one matmul per step;
+ * - the proposal's word-level input b_t and all first-layer biases are added in one broadcast add per step;
+ * - the observation term and the Gaussian terms of all steps are computed after the loop, on [T, K, B, ...]
+ *   stacks, and masked by one multiply.
+ */
+import * as tf from '@tensorflow/tfjs-core';
+import type { EncodedBatch } from '../data/encode';
+import { boundedScale } from './flows/conditioner';
+import type { ConditionalFlow } from './flows/flow';
+import type { SsmSettings } from './ssm-settings';
+
+/** What the computation needs from the model. */
+export interface LogWeightModel {
+  readonly settings: SsmSettings;
+  readonly generativeFlow: ConditionalFlow;
+  readonly inferenceFlow: ConditionalFlow;
+  param(name: string): tf.Variable;
+  encodeBackward(batch: EncodedBatch): tf.Tensor3D;
+  observationLogits(h: tf.Tensor2D): tf.Tensor2D;
+}
+
+/** log W as [B, K] and, if asked, the sampled states as [K, B, T, d]. Call inside a tf.tidy. */
+export function computeLogWeights(
+  m: LogWeightModel, batch: EncodedBatch, k: number, seed: number, beta: number, returnStates: boolean,
+): { logW: tf.Tensor2D; states?: tf.Tensor4D } {
+  const { batchSize: B, maxLen: T } = batch;
+  const { stateSize: d, vocabSize: V, encoderSize: H, proposalHidden: P } = m.settings;
+  const N = B * k;
+  const p = (n: string) => m.param(n);
+  const gen = m.generativeFlow.prepare();
+  const inf = m.inferenceFlow.prepare();
+  const flowWidth = inf.contextWidth + gen.contextWidth;
+  // Rows are k*B + b (sample k of word b); word-level inputs are broadcast over the K samples once per call.
+  const enc = m.encodeBackward(batch); // [T, B, H]
+  const bProj = tf.reshape(tf.add(tf.matMul(tf.reshape(enc, [T * B, H]), p('prop.wb')), p('prop.b1')), [T, 1, B, P]);
+  const flowBias = tf.reshape(tf.concat([inf.contextB, gen.contextB]), [1, 1, 1, flowWidth]);
+  const addend = tf.reshape(
+    tf.concat([tf.broadcastTo(bProj, [T, k, B, P]), tf.broadcastTo(flowBias, [T, k, B, flowWidth])], 3),
+    [T, N, P + flowWidth],
+  );
+  const addends = tf.unstack(addend) as tf.Tensor2D[];
+  const wCtx = tf.concat([p('prop.wh'), inf.contextW, gen.contextW], 1); // [d, P + flowWidth]
+  const eps = tf.randomNormal([T, N, d], 0, 1, 'float32', seed);
+  const noise = tf.unstack(eps) as tf.Tensor2D[];
+  let hPrev = tf.tile(tf.reshape(p('h0'), [1, d]), [N, 1]) as tf.Tensor2D;
+  const states: tf.Tensor2D[] = [];
+  const zs: tf.Tensor2D[] = [];
+  const logDets: tf.Tensor1D[] = [];
+  for (let t = 0; t < T; t++) {
+    const pre = tf.add(tf.matMul(hPrev, wCtx), addends[t] as tf.Tensor2D) as tf.Tensor2D;
+    const [propPre, infPre, genPre] = tf.split(pre, [P, inf.contextWidth, gen.contextWidth], 1) as tf.Tensor2D[];
+    // Proposal q(xi_t | h_{t-1}, b_t) = N(m, diag(s^2)), s = softplus(.) + 1e-4; reparameterised sample.
+    const [mean, scalePre] = tf.split(tf.add(tf.matMul(tf.tanh(propPre as tf.Tensor2D), p('prop.w2')), p('prop.b2')), 2, 1);
+    const std = boundedScale(scalePre as tf.Tensor);
+    const xi = tf.add(mean as tf.Tensor, tf.mul(std, noise[t] as tf.Tensor2D)) as tf.Tensor2D;
+    const q = inf.forward(infPre as tf.Tensor2D, xi); // h_t and log |det d f_q / d xi|
+    const g = gen.inverse(genPre as tf.Tensor2D, q.y); // eps_t = f_g^{-1}(h_t) and its log-det
+    logDets.push(tf.add(tf.add(tf.sum(tf.log(std), 1), g.logdet), q.logdet) as tf.Tensor1D);
+    zs.push(g.z);
+    states.push(q.y);
+    hPrev = q.y;
+  }
+  const hs = tf.stack(states, 0); // [T, N, d]
+  // log N(eps_t; 0, I) + logdet_g - log N(xi_t; m, s^2) + logdet_q; the -d/2 log(2 pi) terms cancel:
+  // = 0.5 * (|e|^2 - |eps_t|^2) + sum log s + logdet_g + logdet_q   (xi = m + s * e).
+  const quadratic = tf.mul(tf.sub(tf.sum(tf.square(eps), 2), tf.sum(tf.square(tf.stack(zs, 0)), 2)), 0.5);
+  const latent = tf.reshape(tf.add(quadratic, tf.stack(logDets, 0)), [T, k, B]);
+  // log p(w_t | h_t) for all steps at once: one-hot targets [T, 1, B, V] broadcast over the K samples.
+  const logProbs = tf.reshape(tf.logSoftmax(m.observationLogits(tf.reshape(hs, [T * N, d]) as tf.Tensor2D)), [T, k, B, V]);
+  const idsT = tf.transpose(tf.tensor2d(batch.ids, [B, T], 'int32'));
+  const target = tf.reshape(tf.cast(tf.oneHot(idsT, V), 'float32'), [T, 1, B, V]);
+  const logObs = tf.sum(tf.mul(logProbs, target), 3); // [T, K, B]
+  const perStep = tf.add(logObs, beta === 1 ? latent : tf.mul(latent, beta));
+  const mask = tf.reshape(tf.transpose(tf.tensor2d(batch.mask, [B, T])), [T, 1, B]);
+  const total = tf.sum(tf.mul(perStep, mask), 0); // masked steps add 0; [K, B]
+  const logW = tf.transpose(total) as tf.Tensor2D;
+  if (!returnStates) return { logW };
+  return { logW, states: tf.transpose(tf.reshape(hs, [T, k, B, d]), [1, 2, 0, 3]) as tf.Tensor4D };
+}
