@@ -18,7 +18,7 @@ import { createEngine } from '../src/app/workers/run-engines';
 import type { TrainerSettings, TrainingSet } from '../src/app/workers/trainer-api';
 
 const STEPS = Number(process.env['BENCH_STEPS'] ?? 20);
-const WARMUP = 3;
+const WARMUP = Number(process.env['BENCH_WARMUP'] ?? 3);
 const CORPUS = 'datasets-demo/archipelago-places.tsv';
 const WASM_DIR = resolve('node_modules/@tensorflow/tfjs-backend-wasm/dist');
 
@@ -78,7 +78,7 @@ async function serve(bundle: string): Promise<{ server: Server; url: string }> {
     if (path === '/worker.js') return res.writeHead(200, { 'Content-Type': 'text/javascript' }).end(bundle);
     const wasm = /^\/tfjs-wasm\/([\w-]+\.wasm)$/.exec(path);
     if (wasm) return res.writeHead(200, { 'Content-Type': 'application/wasm' }).end(readFileSync(join(WASM_DIR, wasm[1] as string)));
-    res.writeHead(404).end();
+    return res.writeHead(404).end();
   });
   await new Promise<void>((r) => server.listen(0, '127.0.0.1', r));
   const address = server.address();

@@ -8,6 +8,9 @@ import { PasswordResetTokenSchema } from '../modules/auth/password-reset-token.e
 import { BenchSchema } from '../modules/benches/bench.entity';
 import { CorpusWordSchema } from '../modules/corpora/corpus-word.entity';
 import { CorpusSchema } from '../modules/corpora/corpus.entity';
+import { EvaluationSchema } from '../modules/evaluations/evaluation.entity';
+import { GridSchema } from '../modules/grids/grid.entity';
+import { ReportSchema } from '../modules/reports/report.entity';
 import { MembershipSchema } from '../modules/benches/membership.entity';
 import { InvitationSchema } from '../modules/invitations/invitation.entity';
 import { CheckpointSchema, MetricPointSchema, RunSchema } from '../modules/runs/run-entities';
@@ -26,4 +29,7 @@ export const entities: EntitySchema<any, never>[] = [
   RunSchema,
   MetricPointSchema,
   CheckpointSchema,
+  GridSchema,
+  EvaluationSchema,
+  ReportSchema,
 ];

@@ -11,6 +11,10 @@ import { activityRoutes } from './activity/activity.routes';
 import { adminRoutes } from './admin/admin.routes';
 import { authRoutes } from './auth/auth.routes';
 import { corporaRoutes } from './corpora/corpora.routes';
+import { benchEvaluationRoutes, checkpointEvaluationRoutes } from './evaluations/evaluations.routes';
+import { gridRoutes } from './grids/grids.routes';
+import { learnabilityRoutes } from './grids/learnability.routes';
+import { reportRoutes } from './reports/reports.routes';
 import { trainingSetRoutes } from './corpora/training-set.routes';
 import { benchListRoutes, benchRoutes } from './benches/benches.routes';
 import { memberRoutes } from './benches/members.routes';
@@ -50,5 +54,20 @@ export const serverModules: ServerModule[] = [
       { path: '/corpora', router: trainingSetRoutes },
     ],
   },
+  {
+    name: 'evaluations',
+    benchRoutes: [
+      { path: '/runs', router: checkpointEvaluationRoutes },
+      { path: '/evaluations', router: benchEvaluationRoutes },
+    ],
+  },
+  {
+    name: 'grids',
+    benchRoutes: [
+      { path: '/grids', router: gridRoutes },
+      { path: '/corpora', router: learnabilityRoutes },
+    ],
+  },
+  { name: 'reports', benchRoutes: [{ path: '/reports', router: reportRoutes }] },
   { name: 'admin', routes: [{ path: '/admin', signedIn: true, router: adminRoutes }] },
 ];

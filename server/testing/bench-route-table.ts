@@ -55,3 +55,26 @@ benchRouteTable.push(
   { method: 'delete', path: () => `/runs/${madeUpId}/metrics?afterStep=0`, minRole: 'member' },
   { method: 'post', path: () => `/runs/${madeUpId}/checkpoints`, minRole: 'member' },
 );
+
+// Evaluations, grids, learnability checks and reports (server/modules/evaluations, grids, reports). Reads of one
+// evaluation / grid / report need real rows, so their specs check them; writes use made-up ids.
+benchRouteTable.push(
+  { method: 'get', path: () => '/evaluations', minRole: 'viewer' },
+  { method: 'get', path: () => `/evaluations/${madeUpId}`, minRole: 'viewer', allowedStatus: 404 },
+  { method: 'post', path: () => `/runs/${madeUpId}/checkpoints/${madeUpId}/evaluations`, minRole: 'member', body: { settings: { K: 256 }, results: {} } },
+  { method: 'get', path: () => '/grids', minRole: 'viewer' },
+  { method: 'get', path: () => `/grids/${madeUpId}`, minRole: 'viewer', allowedStatus: 404 },
+  { method: 'get', path: () => `/grids/${madeUpId}/verdict`, minRole: 'viewer', allowedStatus: 404 },
+  {
+    method: 'post', path: () => '/grids', minRole: 'member',
+    body: { name: 'Sizes', corpusId: madeUpId, family: 'gru', baseSettings: { model: { embedSize: 4, obsHidden: 0 }, training: { steps: 10, batchSize: 4, learningRate: 0.01 } }, axes: [{ key: 'model.stateSize', values: [8, 16] }] },
+  },
+  { method: 'delete', path: () => `/grids/${madeUpId}`, minRole: 'member' },
+  { method: 'post', path: () => `/corpora/${madeUpId}/learnability`, minRole: 'member', body: { budgetSteps: 10 } },
+  { method: 'get', path: () => '/reports', minRole: 'viewer' },
+  { method: 'get', path: () => `/reports/${madeUpId}`, minRole: 'viewer', allowedStatus: 404 },
+  { method: 'get', path: () => `/reports/${madeUpId}/export.csv`, minRole: 'viewer', allowedStatus: 404 },
+  { method: 'get', path: () => `/reports/${madeUpId}/export.json`, minRole: 'viewer', allowedStatus: 404 },
+  { method: 'post', path: () => '/reports', minRole: 'member', body: { kind: 'grid', title: 'Sizes', sourceIds: [madeUpId] } },
+  { method: 'delete', path: () => `/reports/${madeUpId}`, minRole: 'member' },
+);

@@ -30,6 +30,8 @@ export const ErrorCode = {
   RunStatusConflict: 'RUN_STATUS_CONFLICT',
   /** 422: an uploaded checkpoint is damaged, of another format version, or does not fit the run. */
   CheckpointUnusable: 'CHECKPOINT_UNUSABLE',
+  /** 409: an evaluation of this checkpoint with the same settings is stored; the body's `error.existing` holds it. */
+  EvaluationExists: 'EVALUATION_EXISTS',
   /** 409: a simultaneous change got there first (a unique rule in the database); reload and try again. */
   Conflict: 'CONFLICT',
   /** 410: the invitation link was used, revoked or has expired. */

@@ -50,7 +50,7 @@ export async function runEvaluation(o: EvaluateOptions): Promise<{ output: Evalu
   const heldOut = corpus.parts[o.heldOutSplit];
   if (heldOut.length === 0) throw new Error(`The ${o.heldOutSplit} split is empty; change --split or --held-out.`);
   const data: EvaluationData = { alphabet, corpus: corpus.words, train: corpus.parts.train, heldOut };
-  const ngram = KneserNeyModel.fit(corpus.parts.train, alphabet, { order: o.ngramOrder });
+  const ngram = KneserNeyModel.estimate(corpus.parts.train, alphabet, { order: o.ngramOrder });
   let result: SsmEvaluation | ExactEvaluation;
   if (ck.family === 'ssm') {
     const model = modelFromCheckpoint(ck);

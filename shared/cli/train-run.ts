@@ -67,7 +67,7 @@ export async function runTraining(o: TrainOptions, progress: ProgressSink = proc
   }
 
   if (o.model === 'ngram') {
-    const model = KneserNeyModel.fit(parts.train, alphabet, { order: o.order, ...(o.discount !== null ? { discount: o.discount } : {}) });
+    const model = KneserNeyModel.estimate(parts.train, alphabet, { order: o.order, ...(o.discount !== null ? { discount: o.discount } : {}) });
     parameterCount = model.entryCount;
     const f = heldOutFigures(valWords, ngramLogProbs(model, valWords));
     validation.push({ step: 0, bitsPerWord: f.bitsPerWord, bitsPerChar: f.bitsPerChar, k: 0 });

@@ -107,33 +107,49 @@ export function baselineFigures(data: EvaluationData, words: string[], ngram?: K
   return out;
 }
 
+/** Called between the figures of `evaluateSsm` (done of total, and the figure about to be computed). */
+export type EvaluationStageCallback = (done: number, total: number, next: string) => void;
+
 export function evaluateSsm(model: SsmView, data: EvaluationData, s: EvaluationSettings,
-                            baselines: { ngram?: KneserNeyModel; gru?: GruLanguageModel } = {}): SsmEvaluation {
+                            baselines: { ngram?: KneserNeyModel; gru?: GruLanguageModel } = {},
+                            onStage: EvaluationStageCallback = () => {}): SsmEvaluation {
+  const total = 7;
   const words = heldOutSample(data.heldOut, s.maxHeldOut);
   const detail = words.slice(0, s.detailWords);
+  onStage(0, total, 'tight estimate');
   const { perWord: _perWord, ...tight } = tightEstimate(model, words, data.alphabet, { k: s.tightK, repeats: s.repeats, seed: s.seed });
+  onStage(1, total, 'sequence cross entropy');
   const ce: SsmCrossEntropy = ssmSequenceCrossEntropy(model, data.corpus, data.alphabet,
     { samples: s.trajectories, iwaeK: s.crossEntropyK, seed: s.seed });
+  onStage(2, total, 'samples');
   const sampled = sampleWords(model, data.alphabet, { n: s.samples, tMax: s.tMax, seed: s.seed });
   const trainSet = new Set(data.train.map((w) => w.word));
   const heldSet = new Set(data.heldOut.map((w) => w.word));
+  onStage(3, total, 'completions');
   const completions = s.prefixes.map((prefix) => {
     const { particleStates: _a, particleWeights: _b, ...c } = completePrefix(model, data.alphabet, prefix,
       { particles: s.particles, tMax: s.tMax, seed: s.seed });
     return { ...c, continuations: c.continuations.slice(0, 20) };
   });
   const first = completions[0];
-  return {
+  onStage(4, total, 'noise mutual information');
+  const noise = noiseInformation(model, detail, data.alphabet, { draws: s.noiseDraws, seed: s.seed });
+  onStage(5, total, 'observation entropy');
+  const observationEntropy = ssmObservationEntropy(model, detail, data.alphabet, { seed: s.seed });
+  onStage(6, total, 'noise map and baselines');
+  const out: SsmEvaluation = {
     family: 'ssm',
     tight,
     crossEntropy: { shared: strip(ce.shared), iwae: ce.iwae ? strip(ce.iwae) : null, samples: ce.samples, iwaeK: ce.iwaeK },
-    noise: noiseInformation(model, detail, data.alphabet, { draws: s.noiseDraws, seed: s.seed }),
-    observationEntropy: ssmObservationEntropy(model, detail, data.alphabet, { seed: s.seed }),
+    noise,
+    observationEntropy,
     samples: { ...sampleReport(sampled.words, trainSet, heldSet, data.corpus), truncated: sampled.truncated },
     completions,
     noiseMap: noiseMapAt(model, data, first?.meanState),
     baselines: baselineFigures(data, words, baselines.ngram, baselines.gru, detail),
   };
+  onStage(total, total, 'done');
+  return out;
 }
 
 export function evaluateExact(family: 'gru' | 'ngram', model: GruLanguageModel | KneserNeyModel, data: EvaluationData,

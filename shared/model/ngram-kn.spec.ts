@@ -12,7 +12,7 @@ describe('KneserNeyModel', () => {
   // Closed-form property of interpolated (modified) KN: every p_k(.|h) is a proper distribution,
   // because the discounted mass Σ min(D, c)/c(h) is exactly the weight γ(h) given to the lower order.
   it.each([1, 2, 3, 4, 5, 6])('sums to one in seen and unseen contexts at order %i', (order) => {
-    const model = KneserNeyModel.fit(corpus, alphabet, { order });
+    const model = KneserNeyModel.estimate(corpus, alphabet, { order });
     const prefixes = ['', 'a', 'an', 'ann', 'nor', 'oran', 'rrr', 'oao', 'naanna', 'oo'];
     for (const prefix of prefixes) {
       const dist = model.nextDistribution(prefix);
@@ -32,7 +32,7 @@ describe('KneserNeyModel', () => {
   //   p(a|b) = (0.5/3)·0.25 = 0.0416667;  p(EOW|a) = 0.25·0.25 = 0.0625
   it('matches a hand computation of interpolated KN', () => {
     const words = [{ word: 'ab', count: 2 }, { word: 'b', count: 1 }];
-    const m = KneserNeyModel.fit(words, buildAlphabet(['ab', 'b']), { order: 2, discount: 0.5 });
+    const m = KneserNeyModel.estimate(words, buildAlphabet(['ab', 'b']), { order: 2, discount: 0.5 });
     expect(m.logProb('ab')).toBeCloseTo(Math.log((7 / 12) * 0.875 * 0.875), 9);
     expect(m.logProb('b')).toBeCloseTo(Math.log((1 / 3) * 0.875), 9);
     expect(m.logProb('ba')).toBeCloseTo(Math.log((1 / 3) * (1 / 24) * 0.0625), 9);
@@ -55,28 +55,28 @@ describe('KneserNeyModel', () => {
   // Hand computation from the same formulas for corpus {ab: 1}: counts a:1 b:1 EOW:1, N = 3, D = 0.5,
   // p(a) = 0.5/3 + (1.5/3)/3 = 1/3 (the three seen symbols are equally likely, by symmetry).
   it('reduces to a smoothed unigram at order 1', () => {
-    const m = KneserNeyModel.fit([{ word: 'ab', count: 1 }], buildAlphabet(['ab']), { order: 1, discount: 0.5 });
+    const m = KneserNeyModel.estimate([{ word: 'ab', count: 1 }], buildAlphabet(['ab']), { order: 1, discount: 0.5 });
     expect(m.logProb('ab')).toBeCloseTo(3 * Math.log(1 / 3), 12);
   });
 
   it('round-trips through JSON with identical probabilities', () => {
-    const m = KneserNeyModel.fit(corpus, alphabet, { order: 4 });
+    const m = KneserNeyModel.estimate(corpus, alphabet, { order: 4 });
     const back = KneserNeyModel.fromJSON(JSON.parse(JSON.stringify(m.toJSON())));
     for (const w of ['anna', 'ronan', 'o']) expect(back.logProb(w)).toBe(m.logProb(w));
     expect(back.entryCount).toBe(m.entryCount);
   });
 
   it('rejects bad input with a message that says what to fix', () => {
-    expect(() => KneserNeyModel.fit(corpus, alphabet, { order: 7 })).toThrow(/order must be a whole number from 1 to 6/);
-    expect(() => KneserNeyModel.fit([{ word: 'a', count: -1 }], alphabet, { order: 2 })).toThrow(/positive number/);
-    const m = KneserNeyModel.fit(corpus, alphabet, { order: 3 });
+    expect(() => KneserNeyModel.estimate(corpus, alphabet, { order: 7 })).toThrow(/order must be a whole number from 1 to 6/);
+    expect(() => KneserNeyModel.estimate([{ word: 'a', count: -1 }], alphabet, { order: 2 })).toThrow(/positive number/);
+    const m = KneserNeyModel.estimate(corpus, alphabet, { order: 3 });
     expect(() => m.logProb('anxa')).toThrow(/"x" in "anxa" is not in the model's alphabet/);
     expect(() => KneserNeyModel.fromJSON({ kind: 'other' })).toThrow(/not a saved Kneser–Ney/);
   });
 
   it('higher orders fit the training words better than the unigram', () => {
     const lp = (order: number) => {
-      const m = KneserNeyModel.fit(corpus, alphabet, { order });
+      const m = KneserNeyModel.estimate(corpus, alphabet, { order });
       return corpus.reduce((s, w) => s + w.count * m.logProb(w.word), 0);
     };
     expect(lp(3)).toBeGreaterThan(lp(1));

@@ -78,7 +78,7 @@ export class KneserNeyModel {
   /** Vocabulary size V = characters + EOW (ids as in shared/data/encode.ts). */
   get size(): number { return this.chars.length + 1; }
 
-  static fit(words: NgramWordCount[], alphabet: Alphabet, options: NgramOptions): KneserNeyModel {
+  static estimate(words: NgramWordCount[], alphabet: Alphabet, options: NgramOptions): KneserNeyModel {
     const order = options.order;
     if (!Number.isInteger(order) || order < 1 || order > 6) {
       throw new Error(`The n-gram order must be a whole number from 1 to 6 (got ${order}).`);

@@ -2,7 +2,7 @@
  * The per-sample log-weight log W of MODEL.md section 5, for K proposal samples per word, written for few
  * kernel launches (per-kernel overhead dominates at these sizes):
  * - every conditioner's product with h_{t-1} (proposal and each layer of both flows) is one matmul per step;
- * - the proposal's word-level input b_t and all first-layer biases are added in one broadcast add per step;
+ * - all first-layer biases are added in one add per step (the proposal's word-level input b_t in one more);
  * - the observation term and the Gaussian terms of all steps are computed after the loop, on [T, K, B, ...]
  *   stacks, and masked by one multiply.
  */
@@ -32,26 +32,22 @@ export function computeLogWeights(
   const p = (n: string) => m.param(n);
   const gen = m.generativeFlow.prepare();
   const inf = m.inferenceFlow.prepare();
-  const flowWidth = inf.contextWidth + gen.contextWidth;
   // Rows are k*B + b (sample k of word b); word-level inputs are broadcast over the K samples once per call.
   const enc = m.encodeBackward(batch); // [T, B, H]
-  const bProj = tf.reshape(tf.add(tf.matMul(tf.reshape(enc, [T * B, H]), p('prop.wb')), p('prop.b1')), [T, 1, B, P]);
-  const flowBias = tf.reshape(tf.concat([inf.contextB, gen.contextB]), [1, 1, 1, flowWidth]);
-  const addend = tf.reshape(
-    tf.concat([tf.broadcastTo(bProj, [T, k, B, P]), tf.broadcastTo(flowBias, [T, k, B, flowWidth])], 3),
-    [T, N, P + flowWidth],
-  );
-  const addends = tf.unstack(addend) as tf.Tensor2D[];
-  const wCtx = tf.concat([p('prop.wh'), inf.contextW, gen.contextW], 1); // [d, P + flowWidth]
+  const bProj = tf.reshape(tf.add(tf.matMul(tf.reshape(enc, [T * B, H]), p('prop.wb')), p('prop.b1')), [T, B, P]);
+  const bSteps = tf.unstack(bProj) as tf.Tensor2D[]; // [B, P] each, broadcast over the K samples below
+  const biases = tf.concat([tf.zeros([P]), inf.contextB, gen.contextB]); // prop.b1 is already in bProj
+  const wCtx = tf.concat([p('prop.wh'), inf.contextW, gen.contextW], 1); // [d, P + widths of both flows]
   const eps = tf.randomNormal([T, N, d], 0, 1, 'float32', seed);
   const noise = tf.unstack(eps) as tf.Tensor2D[];
-  let hPrev = tf.tile(tf.reshape(p('h0'), [1, d]), [N, 1]) as tf.Tensor2D;
+  let hPrev = tf.add(tf.zeros([N, d]), p('h0')) as tf.Tensor2D;
   const states: tf.Tensor2D[] = [];
   const zs: tf.Tensor2D[] = [];
   const logDets: tf.Tensor1D[] = [];
   for (let t = 0; t < T; t++) {
-    const pre = tf.add(tf.matMul(hPrev, wCtx), addends[t] as tf.Tensor2D) as tf.Tensor2D;
-    const [propPre, infPre, genPre] = tf.split(pre, [P, inf.contextWidth, gen.contextWidth], 1) as tf.Tensor2D[];
+    const pre = tf.add(tf.matMul(hPrev, wCtx), biases) as tf.Tensor2D;
+    const [propCtx, infPre, genPre] = tf.split(pre, [P, inf.contextWidth, gen.contextWidth], 1) as tf.Tensor2D[];
+    const propPre = tf.reshape(tf.add(tf.reshape(propCtx as tf.Tensor2D, [k, B, P]), bSteps[t] as tf.Tensor2D), [N, P]);
     // Proposal q(xi_t | h_{t-1}, b_t) = N(m, diag(s^2)), s = softplus(.) + 1e-4; reparameterised sample.
     const [mean, scalePre] = tf.split(tf.add(tf.matMul(tf.tanh(propPre as tf.Tensor2D), p('prop.w2')), p('prop.b2')), 2, 1);
     const std = boundedScale(scalePre as tf.Tensor);

@@ -15,6 +15,11 @@ export const routes: Routes = [
     loadChildren: () => import('./corpora/corpora.routes').then((m) => m.CORPORA_ROUTES),
   },
   {
+    path: 'benches/:benchId/runs/:runId/checkpoints/:checkpointId/evaluation',
+    canActivate: [signedInGuard],
+    loadChildren: () => import('./evaluation/evaluation.routes').then((m) => m.EVALUATION_ROUTES),
+  },
+  {
     path: 'benches/:benchId/runs',
     canActivate: [signedInGuard],
     loadChildren: () => import('./runs/runs.routes').then((m) => m.RUNS_ROUTES),
@@ -23,6 +28,16 @@ export const routes: Routes = [
     path: 'benches/:benchId/compare',
     canActivate: [signedInGuard],
     loadChildren: () => import('./compare/compare.routes').then((m) => m.COMPARE_ROUTES),
+  },
+  {
+    path: 'benches/:benchId/grids',
+    canActivate: [signedInGuard],
+    loadChildren: () => import('./grids/grids.routes').then((m) => m.GRID_ROUTES),
+  },
+  {
+    path: 'benches/:benchId/reports',
+    canActivate: [signedInGuard],
+    loadChildren: () => import('./reports/reports.routes').then((m) => m.REPORT_ROUTES),
   },
   {
     path: 'benches',

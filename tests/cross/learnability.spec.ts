@@ -45,7 +45,7 @@ describe('learnability of English female first names', () => {
   });
 
   it('a Kneser–Ney 3-gram beats the unigram character model', () => {
-    const kn = KneserNeyModel.fit(parts.train, alphabet, { order: 3 });
+    const kn = KneserNeyModel.estimate(parts.train, alphabet, { order: 3 });
     const f = heldOutFigures(heldOut, ngramLogProbs(kn, heldOut));
     // common practice (no source): a character trigram gains well over half a bit per character on names
     expect(f.bitsPerChar).toBeLessThan(unigramBitsPerChar - 0.5);

@@ -28,10 +28,10 @@ const upload = (bytes: Uint8Array, query = '') =>
 describe('checkpoint upload and download', () => {
   it('stores a checkpoint and gives back exactly the same bytes', async () => {
     const bytes = ssmCheckpointBytes(corpus.alphabet, { step: 120 });
-    const res = await upload(bytes, '?reason=manual&boundBitsPerChar=-2.5');
+    const res = await upload(bytes, '?reason=manual&boundBitsPerChar=2.5');
     expect(res.status).toBe(201);
     const saved = res.body as CheckpointDto;
-    expect(saved).toMatchObject({ step: 120, reason: 'manual', boundBitsPerChar: -2.5, formatVersion: 1, byteSize: bytes.length });
+    expect(saved).toMatchObject({ step: 120, reason: 'manual', boundBitsPerChar: 2.5, formatVersion: 1, byteSize: bytes.length });
 
     const list = await api().get(`${runUrl()}/checkpoints`).set(bearer(f.tokens.viewer));
     expect(list.body).toEqual([saved]);

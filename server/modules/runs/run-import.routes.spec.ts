@@ -54,7 +54,7 @@ describe('importing a checkpoint file as a new run', () => {
     expect(gru.body.settings.model).toEqual({ stateSize: 2, embedSize: 2, obsHidden: 0 });
 
     const alphabet = alphabetFromChars(['a', 'b']);
-    const model = KneserNeyModel.fit([{ word: 'ab', count: 3 }, { word: 'ba', count: 1 }], alphabet, { order: 2 });
+    const model = KneserNeyModel.estimate([{ word: 'ab', count: 3 }, { word: 'ba', count: 1 }], alphabet, { order: 2 });
     const bytes = encodeCheckpoint({ family: 'ngram', settings: model.toJSON(), alphabet: ['a', 'b'], step: 0, seed: 1, weights: {}, createdAt: '2026-03-01T09:00:00.000Z' });
     const ngram = await api().post(importUrl()).set(bearer(f.tokens.member)).attach('file', Buffer.from(bytes), 'bigram.nwck');
     expect(ngram.status).toBe(201);

@@ -71,9 +71,9 @@ describe('status machine', () => {
   it('merges summary updates and refuses unknown summary fields', async () => {
     await setStatusDirectly(t, run.id, 'training');
     await api().patch(url()).set(bearer(f.tokens.member)).send({ summary: { backend: 'wasm', threads: 1, simd: true, parameterCount: 321 } });
-    const res = await api().patch(url()).set(bearer(f.tokens.member)).send({ stepsDone: 50, summary: { lastBoundBitsPerChar: -2.1, lastIsBound: true, wordsPerSecond: 812.5 } });
+    const res = await api().patch(url()).set(bearer(f.tokens.member)).send({ stepsDone: 50, summary: { lastBoundBitsPerChar: 2.1, lastIsBound: true, wordsPerSecond: 812.5 } });
     expect(res.status).toBe(200);
-    expect(res.body.summary).toEqual({ backend: 'wasm', threads: 1, simd: true, parameterCount: 321, lastBoundBitsPerChar: -2.1, lastIsBound: true, wordsPerSecond: 812.5 });
+    expect(res.body.summary).toEqual({ backend: 'wasm', threads: 1, simd: true, parameterCount: 321, lastBoundBitsPerChar: 2.1, lastIsBound: true, wordsPerSecond: 812.5 });
     expect(res.body.stepsDone).toBe(50);
     const bad = await api().patch(url()).set(bearer(f.tokens.member)).send({ summary: { colour: 'teal' } });
     expect(bad.status).toBe(422);

@@ -3,6 +3,7 @@ import { randomUUID } from 'node:crypto';
 import type { RunFamily, RunSettings, RunStatus, RunSummary } from '../../../shared/api/runs';
 import { Bench } from '../benches/bench.entity';
 import { Corpus } from '../corpora/corpus.entity';
+import { Grid } from '../grids/grid.entity';
 import { User } from '../users/user.entity';
 
 /**
@@ -12,7 +13,7 @@ import { User } from '../users/user.entity';
  * bound so the list can sort by it.
  */
 export class Run {
-  [OptionalProps]?: 'id' | 'statusReason' | 'summary' | 'stepsDone' | 'archived' | 'bestBoundBitsPerChar' | 'createdAt' | 'updatedAt';
+  [OptionalProps]?: 'id' | 'statusReason' | 'summary' | 'stepsDone' | 'archived' | 'bestBoundBitsPerChar' | 'createdAt' | 'updatedAt' | 'grid' | 'gridCell';
   id: string = randomUUID();
   bench!: Bench;
   corpus!: Corpus | null;
@@ -27,6 +28,9 @@ export class Run {
   stepsDone = 0;
   archived = false;
   bestBoundBitsPerChar: number | null = null;
+  /** The grid or learnability check this run is a cell of (server/modules/grids), with its coordinates. */
+  grid: Grid | null = null;
+  gridCell: number[] | null = null;
   createdAt: Date = new Date();
   updatedAt: Date = new Date();
 }
@@ -50,6 +54,8 @@ export const RunSchema = new EntitySchema<Run>({
     stepsDone: { type: 'integer', default: 0 },
     archived: { type: 'boolean', default: false },
     bestBoundBitsPerChar: { type: 'double', nullable: true },
+    grid: { kind: 'm:1', entity: () => Grid, nullable: true, deleteRule: 'set null' },
+    gridCell: { type: 'json', nullable: true },
     createdAt: { type: 'datetime' },
     updatedAt: { type: 'datetime', onUpdate: () => new Date() },
   },

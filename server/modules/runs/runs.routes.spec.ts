@@ -131,12 +131,12 @@ describe('listing runs', () => {
     expect((byStatus.body as RunPage).total).toBe(0);
   });
 
-  it('sorts by the best validation bound (higher is better)', async () => {
+  it('sorts by the best validation bound (a cost: lower is better)', async () => {
     const a = await createRun(t, f.benchId, f.tokens.member, ssmRunBody(corpus.id, 'Bound A'));
     const b = await createRun(t, f.benchId, f.tokens.member, ssmRunBody(corpus.id, 'Bound B'));
-    await api().patch(`${runsUrl()}/${a.id}`).set(bearer(f.tokens.member)).send({ summary: { bestValidationBitsPerChar: -2.5 } });
-    await api().patch(`${runsUrl()}/${b.id}`).set(bearer(f.tokens.member)).send({ summary: { bestValidationBitsPerChar: -1.75 } });
-    const res = await api().get(`${runsUrl()}?q=Bound&sort=bestBound&dir=desc`).set(bearer(f.tokens.viewer));
+    await api().patch(`${runsUrl()}/${a.id}`).set(bearer(f.tokens.member)).send({ summary: { bestValidationBitsPerChar: 2.5 } });
+    await api().patch(`${runsUrl()}/${b.id}`).set(bearer(f.tokens.member)).send({ summary: { bestValidationBitsPerChar: 1.75 } });
+    const res = await api().get(`${runsUrl()}?q=Bound&sort=bestBound&dir=asc`).set(bearer(f.tokens.viewer));
     expect((res.body as RunPage).items.map((r) => r.name)).toEqual(['Bound B', 'Bound A']);
   });
 

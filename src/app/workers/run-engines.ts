@@ -193,7 +193,7 @@ export function gruSamples(model: GruLanguageModel, alphabet: Alphabet, n: numbe
 
 function ngramEngine(c: EngineContext): RunEngine {
   const { s, alphabet } = c;
-  const model = KneserNeyModel.fit(c.set.train, alphabet, { order: s.order });
+  const model = KneserNeyModel.estimate(c.set.train, alphabet, { order: s.order });
   const rng = c.rng.fork('ngram-samples');
   const sample = (n: number) => Array.from({ length: n }, () => {
     let word = '';

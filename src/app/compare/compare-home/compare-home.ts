@@ -1,19 +1,141 @@
-import { ChangeDetectionStrategy, Component, input } from '@angular/core';
-import { BenchAreaPlaceholder } from '../../ui/bench-area-placeholder/bench-area-placeholder';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { MatButtonModule } from '@angular/material/button';
+import { MatCheckboxModule } from '@angular/material/checkbox';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatSelectModule } from '@angular/material/select';
+import { MatTableModule } from '@angular/material/table';
+import { ActivatedRoute, Router, RouterLink } from '@angular/router';
+import type { CorpusSummary } from '../../../../shared/api/corpora';
+import { MAX_COMPARED_RUNS } from '../../../../shared/api/reports';
+import type { RunDto } from '../../../../shared/api/runs';
+import { CurrentBench } from '../../benches/current-bench';
+import { messageOf } from '../../core/api-error';
+import { FAMILY_SHORT, STATUS_LABELS } from '../../runs/run-labels';
+import { RunsApi } from '../../runs/runs-api';
+import { CompareCurves, type RunCurve } from '../compare-curves/compare-curves';
+import { compareRows, type EvaluationFigures } from '../compare-rows';
+import { CompareTable } from '../compare-table/compare-table';
+import { ComparisonSources } from '../comparison-sources';
+import { ReportsApi } from '../../reports/reports-api';
 
-/** Landing page of the comparison area (replaced when comparisons ship). */
+export const CURVE_CHOICES = [
+  { series: 'train_bound', label: 'Training bound', unit: 'bits/char' },
+  { series: 'valid_bound', label: 'Validation bound', unit: 'bits/char' },
+  { series: 'noise_mi', label: 'Mean noise mutual information', unit: 'bits' },
+  { series: 'obs_entropy', label: 'Observation entropy', unit: 'bits' },
+] as const;
+
+/** Pick runs of the bench, see them side by side and their curves overlaid; the choice lives in the link (?runs=). */
 @Component({
   selector: 'nw-compare-home',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [BenchAreaPlaceholder],
-  template: `<nw-bench-area-placeholder [benchId]="benchId()" title="Compare" [purpose]="purpose" [upcoming]="upcoming" />`,
+  imports: [
+    RouterLink, MatButtonModule, MatCheckboxModule, MatFormFieldModule, MatIconModule, MatSelectModule, MatTableModule,
+    CompareTable, CompareCurves,
+  ],
+  templateUrl: './compare-home.html',
+  styleUrl: './compare-home.scss',
 })
 export class CompareHome {
   readonly benchId = input.required<string>();
-  protected readonly purpose = 'Side-by-side comparison of finished runs of this bench, and grids over settings.';
-  protected readonly upcoming = [
-    'A table of runs with their figures in bits per word, and overlaid training curves.',
-    'Grids over settings (flows, state sizes, seeds) run as a queue, with a heat map.',
-    'A report to export as CSV / JSON or print, and the one-click learnability check.',
-  ];
+  private readonly api = inject(RunsApi);
+  private readonly sources = inject(ComparisonSources);
+  private readonly reports = inject(ReportsApi);
+  private readonly router = inject(Router);
+  private readonly route = inject(ActivatedRoute);
+  protected readonly bench = inject(CurrentBench);
+  protected readonly curveChoices = CURVE_CHOICES;
+  protected readonly pickColumns = ['pick', 'name', 'family', 'corpus', 'status', 'bestBound'];
+
+  protected readonly corpora = signal<CorpusSummary[]>([]);
+  protected readonly corpusId = signal('');
+  protected readonly runs = signal<RunDto[]>([]);
+  protected readonly chosenIds = signal<string[]>([]);
+  protected readonly problem = signal<string | null>(null);
+  protected readonly curveProblem = signal<string | null>(null);
+  protected readonly curveSeries = signal<(typeof CURVE_CHOICES)[number]['series']>('train_bound');
+  protected readonly curves = signal<RunCurve[]>([]);
+  protected readonly evaluations = signal<Record<string, EvaluationFigures | undefined>>({});
+  protected readonly saving = signal(false);
+
+  protected readonly visibleRuns = computed(() => this.runs().filter((r) => !this.corpusId() || r.corpus?.id === this.corpusId()));
+  protected readonly chosen = computed(() => {
+    const byId = new Map(this.runs().map((r) => [r.id, r]));
+    return this.chosenIds().map((id) => byId.get(id)).filter((r): r is RunDto => !!r);
+  });
+  protected readonly rows = computed(() => compareRows(this.chosen(), this.evaluations()));
+  protected readonly curveChoice = computed(() => CURVE_CHOICES.find((c) => c.series === this.curveSeries())!);
+
+  constructor() {
+    const fromLink = this.route.snapshot.queryParamMap.get('runs');
+    if (fromLink) this.chosenIds.set(fromLink.split(',').filter(Boolean).slice(0, MAX_COMPARED_RUNS));
+    effect(() => {
+      const id = this.benchId();
+      untracked(() => {
+        if (this.bench.current()?.id !== id) void this.bench.open(id);
+        void this.load(id);
+      });
+    });
+    effect(() => {
+      const runs = this.chosen();
+      const series = this.curveSeries();
+      untracked(() => void this.loadCurves(runs, series));
+    });
+    effect(() => {
+      const runs = this.chosen();
+      untracked(() => void this.sources.evaluationFigures(this.benchId(), runs).then((e) => this.evaluations.set(e)));
+    });
+  }
+
+  private async load(benchId: string): Promise<void> {
+    try {
+      const [corpora, page] = await Promise.all([this.api.corpora(benchId), this.api.list(benchId, { limit: 200, sort: 'createdAt', dir: 'desc' })]);
+      this.corpora.set(corpora);
+      this.runs.set(page.items);
+      this.problem.set(null);
+    } catch (error) {
+      this.problem.set(messageOf(error));
+    }
+  }
+
+  private async loadCurves(runs: RunDto[], series: string): Promise<void> {
+    try {
+      const pages = await Promise.all(runs.map((r) => this.api.metrics(this.benchId(), r.id, [series])));
+      this.curves.set(pages.map((p, i) => ({ name: runs[i]!.name, steps: p.series[series]?.steps ?? [], values: p.series[series]?.values ?? [] })));
+      this.curveProblem.set(null);
+    } catch (error) {
+      this.curveProblem.set(`The curves could not be loaded: ${messageOf(error)}`);
+    }
+  }
+
+  protected familyOf(run: RunDto): string { return FAMILY_SHORT[run.family]; }
+  protected statusOf(run: RunDto): string { return STATUS_LABELS[run.status]; }
+  protected isChosen(run: RunDto): boolean { return this.chosenIds().includes(run.id); }
+
+  protected toggle(run: RunDto, on: boolean): void {
+    const ids = this.chosenIds().filter((id) => id !== run.id);
+    if (on) {
+      if (ids.length >= MAX_COMPARED_RUNS) { this.problem.set(`Compare at most ${MAX_COMPARED_RUNS} runs at once: untick one first.`); return; }
+      ids.push(run.id);
+    }
+    this.problem.set(null);
+    this.chosenIds.set(ids);
+    void this.router.navigate([], { relativeTo: this.route, queryParams: { runs: ids.join(',') || null }, replaceUrl: true });
+  }
+
+  protected async saveReport(): Promise<void> {
+    this.saving.set(true);
+    try {
+      const runs = this.chosen();
+      const report = await this.reports.create(this.benchId(), {
+        kind: 'comparison', title: `Comparison of ${runs.map((r) => r.name).join(', ')}`.slice(0, 160), sourceIds: runs.map((r) => r.id),
+      });
+      await this.router.navigate(['/benches', this.benchId(), 'reports', report.id]);
+    } catch (error) {
+      this.problem.set(`The report could not be saved: ${messageOf(error)}`);
+    } finally {
+      this.saving.set(false);
+    }
+  }
 }

@@ -15,6 +15,7 @@ import { CorpusCharts } from '../corpus-charts/corpus-charts';
 import { CorpusWordsTable } from '../corpus-words-table/corpus-words-table';
 import { EditCorpusDialog, type EditCorpusData } from '../edit-corpus-dialog/edit-corpus-dialog';
 import { PersonalDataCaution } from '../personal-data-caution';
+import { LearnabilityButton } from '../../grids/learnability-check/learnability-button';
 
 /** `/benches/:benchId/corpora/:corpusId`: figures, charts and words of one corpus, and what can be done with it. */
 @Component({
@@ -22,7 +23,7 @@ import { PersonalDataCaution } from '../personal-data-caution';
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     DatePipe, DecimalPipe, PercentPipe, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule,
-    CorpusCharts, CorpusWordsTable, PersonalDataCaution,
+    CorpusCharts, CorpusWordsTable, PersonalDataCaution, LearnabilityButton,
   ],
   templateUrl: './corpus-detail.html',
   styleUrl: './corpus-detail.scss',

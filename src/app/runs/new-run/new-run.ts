@@ -131,8 +131,11 @@ export class NewRun {
     } catch (error) {
       if (error instanceof ApiError && Object.keys(error.fields).length > 0) {
         const fields = Object.fromEntries(Object.entries(error.fields).map(([k, v]) => [k.split('.').at(-1) ?? k, v]));
-        const left = [this.form.controls.data, this.form.controls.model, this.form.controls.training].flatMap((g) => applyServerErrors(g, fields));
-        this.problem.set([error.message, ...left].join(' '));
+        const groups = [this.form.controls.data, this.form.controls.model, this.form.controls.training];
+        const unmatched = groups.map((g) => new Set(applyServerErrors(g, fields)));
+        // A message is left over only when no group had a control for it.
+        const left = Object.values(fields).filter((m) => unmatched.every((u) => u.has(m)));
+        this.problem.set([error.message, ...new Set(left)].join(' '));
       } else {
         this.problem.set(messageOf(error));
       }

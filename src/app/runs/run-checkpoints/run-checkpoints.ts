@@ -3,6 +3,7 @@ import { ChangeDetectionStrategy, Component, input, output } from '@angular/core
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatTableModule } from '@angular/material/table';
+import { RouterLink } from '@angular/router';
 import type { CheckpointDto } from '../../../../shared/api/runs';
 
 const REASONS: Record<CheckpointDto['reason'], string> = { auto: 'autosave', stop: 'on stop', manual: 'saved by hand', import: 'imported' };
@@ -11,7 +12,7 @@ const REASONS: Record<CheckpointDto['reason'], string> = { auto: 'autosave', sto
 @Component({
   selector: 'nw-run-checkpoints',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, DecimalPipe, MatButtonModule, MatIconModule, MatTableModule],
+  imports: [DatePipe, DecimalPipe, MatButtonModule, MatIconModule, MatTableModule, RouterLink],
   template: `
     <div class="nw-table-wrap" data-testid="checkpoints">
       <table mat-table [dataSource]="checkpoints()" aria-label="Checkpoints of the run">
@@ -44,6 +45,7 @@ const REASONS: Record<CheckpointDto['reason'], string> = { auto: 'autosave', sto
               <button mat-button type="button" (click)="resumeFrom.emit(c)" [attr.aria-label]="'Resume from step ' + c.step">
                 <mat-icon>replay</mat-icon> Resume from here</button>
             }
+            <a mat-button [routerLink]="['checkpoints', c.id, 'evaluation']" [attr.aria-label]="'Evaluate the checkpoint of step ' + c.step"><mat-icon>analytics</mat-icon> Evaluate</a>
             <button mat-button type="button" (click)="download.emit(c)" [attr.aria-label]="'Download the checkpoint of step ' + c.step">
               <mat-icon>download</mat-icon> Export</button>
           </td>

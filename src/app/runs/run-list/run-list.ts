@@ -94,7 +94,6 @@ export class RunList {
   }
 
   protected reload(): void {
-    this.pageIndex.update((i) => i); // same query
     void this.load(this.benchId(), {
       corpusId: this.corpusId() || undefined, family: this.family() || undefined, status: this.status() || undefined,
       q: this.search().trim() || undefined, sort: this.sort().field, dir: this.sort().dir,

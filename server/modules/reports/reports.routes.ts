@@ -1,0 +1,98 @@
+/**
+ * Reports, mounted at /api/benches/:benchId/reports: create (the server freezes the figures of the
+ * sources), list, read, CSV and JSON exports, delete. Viewers read and export; members create reports;
+ * the creator, coaches and owners delete them. The client shows a report at `/benches/:benchId/reports/:reportId`.
+ */
+import { Router, type Request } from 'express';
+import { createReportSchema, figuresToCsv, reportLink, type ReportDto, type ReportSummaryDto } from '../../../shared/api/reports';
+import { roleAtLeast } from '../../../shared/api/types';
+import type { AppContext } from '../../app-context';
+import { notFound, roleTooLow } from '../../http-error';
+import { requireRole } from '../../middleware/bench-access';
+import { parseBody } from '../../middleware/validate';
+import { currentBench, currentUser } from '../../request-state';
+import { ActivityRepository } from '../activity/activity.repository';
+import { buildSnapshot } from './report-snapshot';
+import { Report } from './report.entity';
+
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+function summaryOf(r: Report): ReportSummaryDto {
+  return {
+    id: r.id, benchId: r.bench.id, kind: r.kind, title: r.title, sourceIds: r.sourceIds,
+    createdBy: r.createdBy ? { id: r.createdBy.id, displayName: r.createdBy.displayName } : null,
+    createdAt: r.createdAt.toISOString(), link: reportLink(r.bench.id, r.id),
+  };
+}
+
+const dtoOf = (r: Report): ReportDto => ({ ...summaryOf(r), snapshot: r.snapshot });
+
+/** A file name from the title: letters, digits and dashes only. */
+function fileStem(r: Report): string {
+  const stem = r.title.normalize('NFKD').replace(/[^A-Za-z0-9]+/g, '-').replace(/^-+|-+$/g, '').slice(0, 60).toLowerCase();
+  return stem || 'report';
+}
+
+export function reportRoutes(ctx: AppContext): Router {
+  const router = Router({ mergeParams: true });
+
+  async function loadReport(req: Request): Promise<Report> {
+    const id = String(req.params['reportId'] ?? '');
+    const found = UUID.test(id)
+      ? await ctx.orm.em.findOne(Report, { id, bench: currentBench(req).bench }, { populate: ['createdBy', 'snapshot'] })
+      : null;
+    if (!found) throw notFound('This report');
+    return found;
+  }
+
+  router.get('/', requireRole('viewer'), async (req, res) => {
+    const list = await ctx.orm.em.find(Report, { bench: currentBench(req).bench }, { orderBy: { createdAt: 'desc', id: 'asc' }, populate: ['createdBy'] });
+    res.json(list.map(summaryOf));
+  });
+
+  router.post('/', requireRole('member'), async (req, res) => {
+    const body = parseBody(createReportSchema, req.body);
+    const { bench, role } = currentBench(req);
+    const me = currentUser(req);
+    const snapshot = await buildSnapshot(ctx.orm.em, bench, me, role, body.kind, body.sourceIds);
+    const now = ctx.clock.now();
+    const report = ctx.orm.em.create(Report, { bench, kind: body.kind, title: body.title, sourceIds: body.sourceIds, snapshot, createdBy: me, createdAt: now });
+    new ActivityRepository(ctx.orm.em).record(bench, me, 'report.created', `${me.displayName} made the ${body.kind} report "${body.title}".`, now);
+    await ctx.orm.em.flush();
+    res.status(201).json(dtoOf(report));
+  });
+
+  router.get('/:reportId', requireRole('viewer'), async (req, res) => {
+    res.json(dtoOf(await loadReport(req)));
+  });
+
+  router.get('/:reportId/export.csv', requireRole('viewer'), async (req, res) => {
+    const report = await loadReport(req);
+    res.type('text/csv; charset=utf-8; header=present');
+    res.attachment(`${fileStem(report)}.csv`);
+    res.send(figuresToCsv(report.snapshot.figures));
+  });
+
+  router.get('/:reportId/export.json', requireRole('viewer'), async (req, res) => {
+    const report = await loadReport(req);
+    res.attachment(`${fileStem(report)}.json`);
+    res.type('application/json; charset=utf-8');
+    res.send(JSON.stringify(dtoOf(report), null, 2));
+  });
+
+  router.delete('/:reportId', requireRole('member'), async (req, res) => {
+    const report = await loadReport(req);
+    const { bench, role } = currentBench(req);
+    const me = currentUser(req);
+    if (!roleAtLeast(role, 'coach') && report.createdBy?.id !== me.id) {
+      throw roleTooLow(`Only the person who made "${report.title}", a coach or an owner may delete it; ask one of them.`);
+    }
+    await ctx.orm.em.nativeDelete(Report, { id: report.id });
+    ctx.orm.em.getUnitOfWork().unsetIdentity(report);
+    new ActivityRepository(ctx.orm.em).record(bench, me, 'report.deleted', `${me.displayName} deleted the report "${report.title}".`, ctx.clock.now());
+    await ctx.orm.em.flush();
+    res.status(204).end();
+  });
+
+  return router;
+}

@@ -1,0 +1,183 @@
+/**
+ * Reports: a frozen copy of an evaluation, a comparison of runs or a grid, with a stable link
+ * (`/benches/:benchId/reports/:reportId` in the client) and CSV / JSON exports, under
+ * `/api/benches/:benchId/reports/...`. The server builds the snapshot from the sources when the report is
+ * created, so later changes to the runs do not change a report. The long-format figure rows
+ * (`section, name, setting, value, unit`) are built by the functions below, shared with the client so an
+ * unsaved page exports the same rows.
+ */
+import { z } from 'zod';
+import type { EvaluationDto } from './evaluations';
+import { GRID_FIGURE_LABELS, type GridDto, type LearnabilityVerdict } from './grids';
+import type { RunDto } from './runs';
+
+export const REPORT_KINDS = ['evaluation', 'comparison', 'grid'] as const;
+export type ReportKind = (typeof REPORT_KINDS)[number];
+export const MAX_COMPARED_RUNS = 16;
+
+/**
+ * `POST /reports`: `sourceIds` is one evaluation id (kind `evaluation`), 1–16 run ids (`comparison`) or one
+ * grid id (`grid`), all of this bench.
+ */
+export const createReportSchema = z
+  .object({
+    kind: z.enum(REPORT_KINDS, { error: 'Choose what the report holds: evaluation, comparison or grid.' }),
+    title: z.string({ error: 'Give the report a title.' }).trim().min(1, 'Give the report a title.').max(160, 'Use a title of at most 160 characters.'),
+    sourceIds: z.array(z.string().uuid('Choose items of this bench.'), { error: 'Give sourceIds as a list of ids.' })
+      .min(1, 'Choose at least one item for the report.')
+      .max(MAX_COMPARED_RUNS, `Choose at most ${MAX_COMPARED_RUNS} items.`),
+  })
+  .strict()
+  .refine((b) => b.kind === 'comparison' || b.sourceIds.length === 1, {
+    message: 'An evaluation or grid report takes exactly one id.',
+    path: ['sourceIds'],
+  });
+export type CreateReportRequest = z.input<typeof createReportSchema>;
+
+/** One figure in long format: the CSV has one row per figure. */
+export interface ReportFigure {
+  /** Group of figures, e.g. `held-out`, `cross entropy`, `run`, `cell`. */
+  section: string;
+  /** What the figure is, e.g. `bits per char`. */
+  name: string;
+  /** Which run / cell / position / estimator setting it belongs to, e.g. `K=256, repeats=3` or a run name. */
+  setting: string;
+  value: number | string;
+  unit: string;
+}
+
+/** A comparison's curves: per run, the validation and training bound series (at most 500 points each). */
+export type ComparisonCurves = Record<string, Record<string, { steps: number[]; values: number[] }>>;
+
+export interface ReportSnapshot {
+  figures: ReportFigure[];
+  evaluation?: EvaluationDto;
+  runs?: RunDto[];
+  curves?: ComparisonCurves;
+  grid?: GridDto;
+  verdict?: LearnabilityVerdict;
+}
+
+export interface ReportSummaryDto {
+  id: string;
+  benchId: string;
+  kind: ReportKind;
+  title: string;
+  sourceIds: string[];
+  createdBy: { id: string; displayName: string } | null;
+  createdAt: string;
+  /** The client route of the report (stable; bench members can open it). */
+  link: string;
+}
+
+export interface ReportDto extends ReportSummaryDto {
+  snapshot: ReportSnapshot;
+}
+
+export const reportLink = (benchId: string, reportId: string): string => `/benches/${benchId}/reports/${reportId}`;
+
+// ---------------------------------------------------------------- figure rows
+
+const row = (section: string, name: string, setting: string, value: number | string | null | undefined, unit: string): ReportFigure[] =>
+  value === null || value === undefined || (typeof value === 'number' && !Number.isFinite(value)) ? [] : [{ section, name, setting, value, unit }];
+
+export function evaluationFigures(e: EvaluationDto): ReportFigure[] {
+  const r = e.results;
+  const out: ReportFigure[] = [];
+  const at = `${e.run.name} step ${e.checkpoint.step}`;
+  if (r.family === 'ssm') {
+    const kSet = `${at}; K=${r.tight.k}, repeats=${r.tight.repeats}`;
+    out.push(
+      ...row('held-out', 'bits per word', kSet, r.tight.bitsPerWord, 'bits/word'),
+      ...row('held-out', 'bits per word spread (sd)', kSet, r.tight.stdBitsPerWord, 'bits/word'),
+      ...row('held-out', 'bits per char', kSet, r.tight.bitsPerChar, 'bits/char'),
+      ...row('held-out', 'bits per char spread (sd)', kSet, r.tight.stdBitsPerChar, 'bits/char'),
+    );
+    const ces: [string, typeof r.crossEntropy.shared | null][] = [[`S=${r.crossEntropy.samples}`, r.crossEntropy.shared], [`K=${r.crossEntropy.iwaeK}`, r.crossEntropy.iwae]];
+    for (const [how, ce] of ces) {
+      if (!ce) continue;
+      out.push(
+        ...row('cross entropy', 'H(p_data, p_model)', `${at}; ${how}`, ce.crossEntropyBits, 'bits/word'),
+        ...row('cross entropy', 'H(p_data)', `${at}; ${how}`, ce.dataEntropyBits, 'bits/word'),
+        ...row('cross entropy', 'KL gap', `${at}; ${how}`, ce.klGapBits, 'bits/word'),
+        ...row('cross entropy', 'model mass on the corpus', `${at}; ${how}`, ce.modelMass, 'probability'),
+      );
+    }
+    out.push(...row('noise', 'mean mutual information', `${at}; M=${r.noise.draws}`, r.noise.meanBits, 'bits'));
+    out.push(...row('noise', 'upper end (log V)', at, r.noise.maxBits, 'bits'));
+    for (const p of r.noise.perPosition) out.push(...row('noise', 'median mutual information', `${at}; t=${p.t}`, p.median, 'bits'));
+    out.push(...row('observation entropy', 'state-space model', at, r.observationEntropy.meanBits, 'bits'));
+    out.push(
+      ...row('samples', 'count', at, r.samples.count, 'words'),
+      ...row('samples', 'share in training split', at, r.samples.shares.train, 'share'),
+      ...row('samples', 'share in held-out split', at, r.samples.shares.heldOut, 'share'),
+      ...row('samples', 'share novel', at, r.samples.shares.novel, 'share'),
+      ...row('samples', 'cut at Tmax', at, r.samples.truncated, 'words'),
+    );
+  } else {
+    out.push(
+      ...row('held-out', 'bits per word', at, r.heldOut.bitsPerWord, 'bits/word'),
+      ...row('held-out', 'bits per char', at, r.heldOut.bitsPerChar, 'bits/char'),
+      ...row('cross entropy', 'H(p_data, p_model)', at, r.crossEntropy.crossEntropyBits, 'bits/word'),
+      ...row('cross entropy', 'H(p_data)', at, r.crossEntropy.dataEntropyBits, 'bits/word'),
+      ...row('cross entropy', 'KL gap', at, r.crossEntropy.klGapBits, 'bits/word'),
+      ...row('cross entropy', 'model mass on the corpus', at, r.crossEntropy.modelMass, 'probability'),
+      ...row('observation entropy', r.family === 'gru' ? 'GRU' : 'n-gram', at, r.predictiveEntropy?.meanBits, 'bits'),
+    );
+  }
+  const b = r.baselines;
+  out.push(...row('baselines', 'unigram bits per char', at, b.unigram.bitsPerChar, 'bits/char'));
+  if (b.ngram) out.push(...row('baselines', `${b.ngram.order}-gram bits per char`, at, b.ngram.bitsPerChar, 'bits/char'));
+  if (b.gru) {
+    out.push(...row('baselines', 'GRU bits per char', at, b.gru.bitsPerChar, 'bits/char'));
+    out.push(...row('observation entropy', 'GRU', at, b.gru.predictiveEntropy.meanBits, 'bits'));
+  }
+  return out;
+}
+
+export function comparisonFigures(runs: readonly RunDto[]): ReportFigure[] {
+  return runs.flatMap((r) => [
+    ...row('run', 'family', r.name, r.family, ''),
+    ...row('run', 'steps done', r.name, r.stepsDone, 'steps'),
+    ...row('run', 'final training bound', r.name, r.summary.lastBoundBitsPerChar, 'bits/char'),
+    ...row('run', 'best validation bound', r.name, r.summary.bestValidationBitsPerChar, 'bits/char'),
+    ...row('run', 'parameters', r.name, r.summary.parameterCount, 'count'),
+    ...row('run', 'training speed', r.name, r.summary.wordsPerSecond, 'words/s'),
+  ]);
+}
+
+export function gridFigures(grid: GridDto, verdict?: LearnabilityVerdict): ReportFigure[] {
+  const f = GRID_FIGURE_LABELS[grid.figure];
+  const out = grid.cells.flatMap((c) => [
+    ...row('cell', f.label, c.label, c.figure, f.unit),
+    ...row('cell', 'status', c.label, c.run?.status ?? 'deleted', ''),
+  ]);
+  if (verdict) {
+    for (const v of verdict.rows) {
+      out.push(...row('verdict', 'bits per char', v.model, v.bitsPerChar, 'bits/char'));
+      out.push(...row('verdict', 'gap to the n-gram floor', v.model, v.gapToNgramFloor, 'bits/char'));
+    }
+    for (const c of verdict.comparisons) {
+      out.push(...row('verdict', 'SSM minus GRU', `state size ${c.stateSize}`, c.difference, 'bits/char'));
+      out.push(...row('verdict', 'on par with the GRU', `state size ${c.stateSize}; tolerance ${verdict.toleranceBits}`, c.onPar === null ? null : c.onPar ? 'yes' : 'no', ''));
+    }
+  }
+  return out;
+}
+
+// ---------------------------------------------------------------- CSV (RFC 4180)
+
+export const REPORT_CSV_HEADER = ['section', 'name', 'setting', 'value', 'unit'] as const;
+
+/** One field per RFC 4180 section 2: quoted when it holds a comma, a quote, a line break or edge spaces; quotes doubled. */
+function csvField(v: string): string {
+  const flat = v.replace(/\r\n|\r|\n/g, ' ');
+  return /[",]|^\s|\s$/.test(flat) ? `"${flat.replace(/"/g, '""')}"` : flat;
+}
+
+/** The figures as CSV text: a header row, then one row per figure, CRLF line ends (RFC 4180 section 2.1). */
+export function figuresToCsv(figures: readonly ReportFigure[]): string {
+  const lines = [REPORT_CSV_HEADER.join(',')];
+  for (const f of figures) lines.push([f.section, f.name, f.setting, String(f.value), f.unit].map(csvField).join(','));
+  return `${lines.join('\r\n')}\r\n`;
+}

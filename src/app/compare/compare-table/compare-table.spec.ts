@@ -1,0 +1,72 @@
+import { provideZonelessChangeDetection } from '@angular/core';
+import { TestBed } from '@angular/core/testing';
+import { TestbedHarnessEnvironment } from '@angular/cdk/testing/testbed';
+import { MatTableHarness } from '@angular/material/table/testing';
+import type { RunDto } from '../../../../shared/api/runs';
+import { compareRows } from '../compare-rows';
+import { CompareTable } from './compare-table';
+
+function ssmRun(id: string, name: string, stateSize: number, inference: string, seed: number): RunDto {
+  return {
+    id, benchId: 'b1', corpus: { id: 'c1', name: 'Syllables' }, createdBy: null, name, family: 'ssm',
+    settings: {
+      model: { stateSize, generativeFlow: [{ kind: 'coupling' }, { kind: 'diag' }], inferenceFlow: [{ kind: inference as 'diag' }],
+        flowHidden: 16, observationHidden: 0, embeddingSize: 8, encoderSize: 32, proposalHidden: 16 },
+      training: { steps: 300, batchSize: 32, samples: 4, learningRate: 0.01, clipNorm: 5, warmupSteps: 0, regime: 'token', seed,
+        evalEvery: 50, evalSamples: 64, checkpointEvery: 100 },
+    },
+    alphabet: ['a', 'b'], status: 'finished', statusReason: null,
+    summary: { lastBoundBitsPerChar: 2.5, bestValidationBitsPerChar: stateSize === 8 ? 2.61 : 2.4, parameterCount: 1000 + stateSize },
+    stepsDone: 300, archived: false, checkpointCount: 1, canControl: true, createdAt: '2026-12-01T00:00:00Z', updatedAt: '2026-12-01T00:00:00Z',
+  };
+}
+
+async function render(runs: RunDto[]) {
+  TestBed.configureTestingModule({ imports: [CompareTable], providers: [provideZonelessChangeDetection()] });
+  const fixture = TestBed.createComponent(CompareTable);
+  fixture.componentRef.setInput('runs', runs);
+  fixture.componentRef.setInput('rows', compareRows(runs));
+  await fixture.whenStable();
+  const table = await TestbedHarnessEnvironment.loader(fixture).getHarness(MatTableHarness);
+  const rows = await table.getRows();
+  const byLabel = new Map<string, Record<string, string>>();
+  for (const row of rows) {
+    const cells = await row.getCellTextByColumnName();
+    byLabel.set(cells['label']!.replace(/\s*differs$/, '').replace(/\s*\(.*\)$/, '').trim(), cells);
+  }
+  return byLabel;
+}
+
+describe('CompareTable', { timeout: 30_000 }, () => {
+  it('marks exactly the rows whose values differ between runs', async () => {
+    // Two runs that differ only in state size and seed (and hence in the figures that follow from them).
+    const rows = await render([ssmRun('r1', 'small', 8, 'diag', 1), ssmRun('r2', 'wider', 16, 'diag', 2)]);
+    expect(rows.get('State size')!['label']).toMatch(/differs$/);
+    expect(rows.get('Seed')!['label']).toMatch(/differs$/);
+    expect(rows.get('Inference flow')!['label']).not.toMatch(/differs/);
+    expect(rows.get('Generative flow')!['label']).not.toMatch(/differs/);
+    expect(rows.get('Learning rate')!['label']).not.toMatch(/differs/);
+    expect(rows.get('Best validation bound')!['label']).toMatch(/differs$/);
+    expect(rows.get('Final training bound')!['label']).not.toMatch(/differs/);
+    // The values sit in one column per run, numbers as the table prints them.
+    expect(rows.get('State size')!['run0']).toBe('8');
+    expect(rows.get('State size')!['run1']).toBe('16');
+    expect(rows.get('Best validation bound')!['run0']).toBe('2.610');
+    expect(rows.get('Generative flow')!['run1']).toBe('coupling → diag');
+  });
+
+  it('marks a flow change and leaves the state size alone when only the flow changes', async () => {
+    const rows = await render([ssmRun('r1', 'diag', 8, 'diag', 1), ssmRun('r2', 'tril', 8, 'tril', 1)]);
+    expect(rows.get('Inference flow')!['label']).toMatch(/differs$/);
+    expect(rows.get('State size')!['label']).not.toMatch(/differs/);
+    expect(rows.get('Seed')!['label']).not.toMatch(/differs/);
+  });
+
+  it('shows a missing figure as a dash and counts it as a difference', async () => {
+    const a = ssmRun('r1', 'a', 8, 'diag', 1);
+    const b = { ...ssmRun('r2', 'b', 8, 'diag', 1), summary: { ...a.summary, bestValidationBitsPerChar: null } };
+    const rows = await render([a, b]);
+    expect(rows.get('Best validation bound')!['run1']).toBe('—');
+    expect(rows.get('Best validation bound')!['label']).toMatch(/differs$/);
+  });
+});

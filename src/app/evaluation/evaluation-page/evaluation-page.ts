@@ -1,0 +1,176 @@
+import { DatePipe, DecimalPipe } from '@angular/common';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { HttpClient } from '@angular/common/http';
+import { MatButtonModule } from '@angular/material/button';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { Router, RouterLink } from '@angular/router';
+import { firstValueFrom } from 'rxjs';
+import {
+  evaluationSettingsKey, evaluationSettingsSchema, type EvaluationDto, type EvaluationSettingsInput, type EvaluationSummaryDto,
+} from '../../../../shared/api/evaluations';
+import type { ReportDto } from '../../../../shared/api/reports';
+import type { CheckpointDto, RunDto, SsmRunSettings } from '../../../../shared/api/runs';
+import { ApiError } from '../../core/api-error';
+import { CurrentBench } from '../../benches/current-bench';
+import { FAMILY_LABELS } from '../../runs/run-labels';
+import { RunsApi } from '../../runs/runs-api';
+import type { EvaluationProgress } from '../../workers/evaluator-api';
+import { CompletionPanel } from '../completion-panel/completion-panel';
+import { EvaluationCharts } from '../evaluation-charts/evaluation-charts';
+import { EvaluationFigures } from '../evaluation-figures/evaluation-figures';
+import { EvaluationSamples } from '../evaluation-samples/evaluation-samples';
+import { EvaluationSettingsForm, type BaselineChoice } from '../evaluation-settings/evaluation-settings';
+import { EvaluationWorker } from '../evaluation-worker';
+import { EvaluationsApi } from '../evaluations-api';
+import { NoiseMapPanel } from '../noise-map-panel/noise-map-panel';
+import { runAndStore } from './evaluation-runner';
+
+/** One checkpoint's evaluation: settings, progress, the stored figures and charts, completion and the noise map. */
+@Component({
+  selector: 'nw-evaluation-page',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [DatePipe, DecimalPipe, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, CompletionPanel, EvaluationCharts,
+    EvaluationFigures, EvaluationSamples, EvaluationSettingsForm, NoiseMapPanel],
+  providers: [EvaluationWorker],
+  templateUrl: './evaluation-page.html',
+  styleUrl: './evaluation-page.scss',
+})
+export class EvaluationPage {
+  readonly benchId = input.required<string>();
+  readonly runId = input.required<string>();
+  readonly checkpointId = input.required<string>();
+  private readonly bench = inject(CurrentBench);
+  private readonly runs = inject(RunsApi);
+  private readonly evaluations = inject(EvaluationsApi);
+  private readonly worker = inject(EvaluationWorker);
+  private readonly http = inject(HttpClient);
+  private readonly router = inject(Router);
+
+  protected readonly run = signal<RunDto | null>(null);
+  protected readonly checkpoint = signal<CheckpointDto | null>(null);
+  protected readonly stored = signal<EvaluationSummaryDto[]>([]);
+  protected readonly shown = signal<EvaluationDto | null>(null);
+  protected readonly baselines = signal<BaselineChoice[]>([]);
+  protected readonly progress = signal<EvaluationProgress | null>(null);
+  protected readonly problem = signal<string | null>(null);
+  protected readonly reportBusy = signal(false);
+  protected readonly notice = signal<string | null>(null);
+  protected readonly familyLabels = FAMILY_LABELS;
+
+  protected readonly busy = computed(() => this.progress() !== null);
+  protected readonly percent = computed(() => {
+    const p = this.progress();
+    return p && p.total > 0 ? (100 * p.done) / p.total : 0;
+  });
+  protected readonly ssm = computed(() => {
+    const r = this.shown()?.results;
+    return r && r.family === 'ssm' ? r : null;
+  });
+  protected readonly stateSize = computed(() => {
+    const r = this.run();
+    return r?.family === 'ssm' ? (r.settings as SsmRunSettings).model.stateSize : 0;
+  });
+  protected readonly canReport = computed(() => (this.bench.current()?.role ?? 'viewer') !== 'viewer');
+  /** Loads this checkpoint into the worker for completion and the noise map (once per page). */
+  protected readonly loadModel = () => this.worker.open(() => this.runs.downloadCheckpoint(this.benchId(), this.runId(), this.checkpointId()));
+
+  constructor() {
+    effect(() => {
+      const [benchId, runId, checkpointId] = [this.benchId(), this.runId(), this.checkpointId()];
+      untracked(() => {
+        if (this.bench.current()?.id !== benchId) void this.bench.open(benchId);
+        void this.load(benchId, runId, checkpointId);
+      });
+    });
+  }
+
+  private async load(benchId: string, runId: string, checkpointId: string): Promise<void> {
+    try {
+      const [run, checkpoints, stored] = await Promise.all([
+        this.runs.get(benchId, runId), this.runs.checkpoints(benchId, runId), this.evaluations.list(benchId, runId, checkpointId),
+      ]);
+      const checkpoint = checkpoints.find((c) => c.id === checkpointId) ?? null;
+      if (!checkpoint) throw new Error('This checkpoint no longer exists (only the newest autosaves are kept); open another one from the run page.');
+      this.run.set(run);
+      this.checkpoint.set(checkpoint);
+      this.stored.set(stored);
+      this.problem.set(null);
+      if (stored[0]) await this.show(stored[0].id);
+      if (run.family === 'ssm' && run.corpus) {
+        const grus = await this.runs.list(benchId, { corpusId: run.corpus.id, family: 'gru', archived: 'all', limit: 100 });
+        this.baselines.set(grus.items.filter((g) => g.checkpointCount > 0).map((g) => ({ runId: g.id, label: `${g.name} (state size ${(g.settings as { model: { stateSize: number } }).model.stateSize})` })));
+      }
+    } catch (error) {
+      this.problem.set(problemText(error));
+    }
+  }
+
+  protected async show(evaluationId: string): Promise<void> {
+    try {
+      this.shown.set(await this.evaluations.get(this.benchId(), evaluationId));
+    } catch (error) {
+      this.problem.set(problemText(error));
+    }
+  }
+
+  protected async evaluate(settings: EvaluationSettingsInput): Promise<void> {
+    const run = this.run();
+    if (!run || this.busy()) return;
+    this.problem.set(null);
+    this.notice.set(null);
+    const key = evaluationSettingsKey(evaluationSettingsSchema.parse(settings));
+    const same = this.stored().find((e) => evaluationSettingsKey(e.settings) === key);
+    if (same) {
+      await this.show(same.id);
+      this.notice.set('An evaluation with exactly these settings is stored already; it is shown without computing it again.');
+      return;
+    }
+    this.progress.set({ done: 0, total: 1, next: 'starting the worker' });
+    try {
+      const saved = await runAndStore({ runs: this.runs, evaluations: this.evaluations, worker: this.worker }, this.benchId(), run,
+        this.checkpointId(), settings, (p) => this.progress.set(p));
+      this.shown.set(saved);
+      this.stored.set(await this.evaluations.list(this.benchId(), run.id, this.checkpointId()));
+    } catch (error) {
+      this.problem.set(problemText(error));
+    } finally {
+      this.progress.set(null);
+    }
+  }
+
+  protected async createReport(): Promise<void> {
+    const e = this.shown();
+    const run = this.run();
+    if (!e || !run) return;
+    this.reportBusy.set(true);
+    try {
+      const report = await firstValueFrom(this.http.post<ReportDto>(`/api/benches/${encodeURIComponent(this.benchId())}/reports`, {
+        kind: 'evaluation', title: `${run.name}, step ${e.checkpoint.step}: evaluation (K = ${e.settings.K}, seed ${e.settings.seed})`, sourceIds: [e.id],
+      }));
+      await this.router.navigateByUrl(report.link);
+    } catch (error) {
+      this.problem.set(problemText(error));
+    } finally {
+      this.reportBusy.set(false);
+    }
+  }
+
+  protected downloadJson(): void {
+    const e = this.shown();
+    if (!e) return;
+    const url = URL.createObjectURL(new Blob([JSON.stringify(e, null, 1)], { type: 'application/json' }));
+    const a = document.createElement('a');
+    a.href = url;
+    a.download = `${(e.run.name || 'run').replace(/[^\w.-]+/g, '-')}-step-${e.checkpoint.step}-evaluation.json`;
+    a.click();
+    setTimeout(() => URL.revokeObjectURL(url), 10_000);
+  }
+}
+
+/** A sentence for the person: the server's message, the worker's message, or a generic fallback. */
+function problemText(error: unknown): string {
+  if (error instanceof ApiError) return error.message;
+  if (error instanceof Error && error.message) return error.message;
+  return 'Something went wrong. Try again; if it keeps happening, reload the page.';
+}

@@ -1,0 +1,30 @@
+import { HttpClient } from '@angular/common/http';
+import { Injectable, inject } from '@angular/core';
+import { firstValueFrom } from 'rxjs';
+import type { CreateEvaluationRequest, EvaluationDto, EvaluationSummaryDto } from '../../../shared/api/evaluations';
+
+const enc = encodeURIComponent;
+
+/** Stored evaluations of a checkpoint (DEVELOPERS.md, "REST API"). Failures arrive as ApiError. */
+@Injectable({ providedIn: 'root' })
+export class EvaluationsApi {
+  private readonly http = inject(HttpClient);
+
+  private base(benchId: string, runId: string, checkpointId: string): string {
+    return `/api/benches/${enc(benchId)}/runs/${enc(runId)}/checkpoints/${enc(checkpointId)}/evaluations`;
+  }
+
+  /** The evaluations stored for a checkpoint, newest first (without their figures). */
+  list(benchId: string, runId: string, checkpointId: string): Promise<EvaluationSummaryDto[]> {
+    return firstValueFrom(this.http.get<EvaluationSummaryDto[] | { items: EvaluationSummaryDto[] }>(this.base(benchId, runId, checkpointId)))
+      .then((r) => (Array.isArray(r) ? r : r.items));
+  }
+
+  get(benchId: string, evaluationId: string): Promise<EvaluationDto> {
+    return firstValueFrom(this.http.get<EvaluationDto>(`/api/benches/${enc(benchId)}/evaluations/${enc(evaluationId)}`));
+  }
+
+  create(benchId: string, runId: string, checkpointId: string, body: CreateEvaluationRequest): Promise<EvaluationDto> {
+    return firstValueFrom(this.http.post<EvaluationDto>(this.base(benchId, runId, checkpointId), body));
+  }
+}

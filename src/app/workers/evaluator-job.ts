@@ -1,0 +1,118 @@
+/**
+ * One evaluation of a checkpoint, as the evaluation worker runs it: the same steps as `npm run evaluate`
+ * (shared/cli/evaluate-run.ts) — decode the checkpoint, build the corpus / training / held-out words, fit the
+ * Kneser–Ney baseline on the training words, then `evaluateSsm` or `evaluateExact` from
+ * shared/eval/evaluation-report.ts — but from the server's training set instead of a file. Framework-free: the
+ * worker and the Node parity test (tests/cross/evaluation-parity.spec.ts) call this very function.
+ */
+import type { TrainingSet as CorpusTrainingSet } from '../../../shared/api/runs';
+import { alphabetFromChars, type WordCount } from '../../../shared/data/encode';
+import { splitOf, type SplitShares } from '../../../shared/data/split';
+import {
+  evaluateExact, evaluateSsm, type EvaluationData, type EvaluationSettings, type EvaluationStageCallback, type ExactEvaluation,
+  type SsmEvaluation,
+} from '../../../shared/eval/evaluation-report';
+import { decodeCheckpoint, type Checkpoint } from '../../../shared/model/checkpoint';
+import { GruLanguageModel, type GruSettings } from '../../../shared/model/gru-lm';
+import { KneserNeyModel } from '../../../shared/model/ngram-kn';
+import { modelFromCheckpoint } from '../../../shared/model/ssm-checkpoint';
+
+export interface EvaluationJobInput {
+  /** The checkpoint file's bytes. */
+  checkpoint: Uint8Array;
+  /** The corpus as the server hands it to trainers (`GET .../training-set`). */
+  corpus: CorpusTrainingSet;
+  /** The run's own split when it has one (else the corpus's stored split applies). */
+  split: { seed: number; shares: SplitShares } | null;
+  heldOutSplit: 'validation' | 'test';
+  /** Order of the Kneser–Ney baseline fitted on the training words (`npm run evaluate --order`, default 3). */
+  ngramOrder: number;
+  settings: EvaluationSettings;
+  /** A GRU checkpoint trained on the same corpus: its figures go beside the model's. */
+  gruCheckpoint?: Uint8Array | null;
+}
+
+export type EvaluationJobResult = SsmEvaluation | ExactEvaluation;
+
+/** Corpus words and their splits, from the server's parallel arrays (and the run's own split, if any). */
+export function evaluationData(input: Pick<EvaluationJobInput, 'corpus' | 'split' | 'heldOutSplit'>, chars: readonly string[]): EvaluationData {
+  const { corpus, split } = input;
+  const known = new Set(chars);
+  const words: WordCount[] = [];
+  const train: WordCount[] = [];
+  const heldOut: WordCount[] = [];
+  corpus.words.forEach((word, i) => {
+    const wc = { word, count: corpus.counts[i] as number };
+    words.push(wc);
+    const part = split ? splitOf(word, split.seed, split.shares) : corpus.splits[i];
+    if (part === 'train') train.push(wc);
+    else if (part === input.heldOutSplit) heldOut.push(wc);
+  });
+  const bad = words.find((w) => Array.from(w.word).some((c) => !known.has(c)));
+  if (bad) {
+    throw new Error(`The corpus word "${bad.word}" uses characters the model never saw; evaluate the checkpoint on the corpus it was trained on.`);
+  }
+  if (heldOut.length === 0) throw new Error(`The ${input.heldOutSplit} split of this corpus is empty; choose the other held-out split.`);
+  if (train.length === 0) throw new Error('The training split of this corpus is empty; the baselines cannot be fitted.');
+  return { alphabet: alphabetFromChars(chars), corpus: words, train, heldOut };
+}
+
+function gruFrom(ck: Checkpoint): GruLanguageModel {
+  const model = new GruLanguageModel(ck.settings as GruSettings, ck.seed);
+  try {
+    model.setWeights(ck.weights);
+  } catch (e) {
+    model.dispose();
+    throw e;
+  }
+  return model;
+}
+
+/** Checks the evaluation settings a person typed (the worker rejects bad ones before any compute). */
+export function checkEvaluationSettings(s: EvaluationSettings): void {
+  const whole = (v: number, name: string, min: number, max: number) => {
+    if (!Number.isInteger(v) || v < min || v > max) throw new Error(`${name} must be a whole number from ${min} to ${max} (got ${v}).`);
+  };
+  whole(s.tightK, 'K of the tight estimate', 1, 4096);
+  whole(s.repeats, 'Repeats', 1, 20);
+  whole(s.trajectories, 'Trajectories S', 1, 16384);
+  whole(s.crossEntropyK, 'K of the second cross-entropy estimate', 0, 1024);
+  whole(s.noiseDraws, 'Noise draws M', 2, 4096);
+  whole(s.detailWords, 'Detail words', 1, 5000);
+  whole(s.samples, 'Samples', 1, 100_000);
+  whole(s.tMax, 'Longest sample', 2, 200);
+  whole(s.particles, 'Particles', 1, 100_000);
+  whole(s.maxHeldOut, 'Held-out words', 1, 100_000);
+  whole(s.seed, 'Seed', 0, 2 ** 31 - 1);
+}
+
+export function runEvaluationJob(input: EvaluationJobInput, onStage?: EvaluationStageCallback): EvaluationJobResult {
+  checkEvaluationSettings(input.settings);
+  const ck = decodeCheckpoint(input.checkpoint);
+  const data = evaluationData(input, ck.alphabet);
+  const ngram = KneserNeyModel.estimate(data.train, data.alphabet, { order: input.ngramOrder });
+  if (ck.family === 'ssm') {
+    const gruCk = input.gruCheckpoint ? decodeCheckpoint(input.gruCheckpoint) : null;
+    if (gruCk && gruCk.family !== 'gru') throw new Error(`The baseline must be a GRU checkpoint (it holds a ${gruCk.family} model).`);
+    if (gruCk && gruCk.alphabet.join('') !== ck.alphabet.join('')) throw new Error('The GRU baseline was trained with another alphabet; choose a GRU run of the same corpus.');
+    const model = modelFromCheckpoint(ck);
+    let gru: GruLanguageModel | undefined;
+    try {
+      gru = gruCk ? gruFrom(gruCk) : undefined;
+      return evaluateSsm(model, data, input.settings, { ngram, gru }, onStage);
+    } finally {
+      model.dispose();
+      gru?.dispose();
+    }
+  }
+  onStage?.(0, 1, 'exact likelihood');
+  if (ck.family === 'gru') {
+    const model = gruFrom(ck);
+    try {
+      return evaluateExact('gru', model, data, input.settings, ngram);
+    } finally {
+      model.dispose();
+    }
+  }
+  return evaluateExact('ngram', KneserNeyModel.fromJSON(ck.settings), data, input.settings, ngram);
+}

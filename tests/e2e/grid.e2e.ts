@@ -1,0 +1,205 @@
+/**
+ * Grids and comparisons, end to end in Chromium: a grid of 4 small GRU runs (state size 4/8 × seed 1/2, a few
+ * dozen steps each) is designed in the form, trains in this tab's worker queue, survives a page reload half-way
+ * (the unfinished runs continue from their latest checkpoints), and its heat map fills in. Then two of its runs
+ * are compared side by side (the differing settings are marked), saved as a report, and the report's CSV is read back.
+ * Last, a learnability check with a tiny budget is started from the corpus page and fills its verdict table.
+ */
+import assert from 'node:assert/strict';
+import { readFileSync } from 'node:fs';
+import { after, before, test } from 'node:test';
+import type { Page } from 'playwright-core';
+import type { GridDto } from '../../shared/api/grids';
+import { launchBrowser, screenshot, type TestBrowser } from './support/browser';
+import { startTestServer, type TestServer } from './support/test-server';
+
+let server: TestServer;
+let browser: TestBrowser;
+/** The bench and corpus of the first test, used again by the learnability check. */
+let shared: { benchId: string; corpusId: string; token: string } | null = null;
+
+before(async () => {
+  server = await startTestServer();
+  browser = await launchBrowser();
+});
+
+after(async () => {
+  await browser?.close();
+  await server?.stop();
+});
+
+async function api<T>(path: string, token: string, init: RequestInit = {}): Promise<T> {
+  const res = await fetch(`${server.url}/api${path}`, { ...init, headers: { Authorization: `Bearer ${token}`, ...(init.headers ?? {}) } });
+  if (!res.ok) throw new Error(`${init.method ?? 'GET'} ${path} answered ${res.status}: ${await res.text()}`);
+  const type = res.headers.get('content-type') ?? '';
+  return (type.includes('json') ? await res.json() : await res.text()) as T;
+}
+
+/** A small RFC 4180 reader (section 2: quoted fields, doubled quotes, CRLF records), written apart from the exporter. */
+function parseCsv(text: string): string[][] {
+  const records: string[][] = [];
+  let field = '';
+  let record: string[] = [];
+  let quoted = false;
+  for (let i = 0; i < text.length; i++) {
+    const ch = text[i]!;
+    if (quoted) {
+      if (ch === '"' && text[i + 1] === '"') { field += '"'; i++; } else if (ch === '"') quoted = false; else field += ch;
+    } else if (ch === '"') quoted = true;
+    else if (ch === ',') { record.push(field); field = ''; } else if (ch === '\r' && text[i + 1] === '\n') {
+      record.push(field); records.push(record); record = []; field = ''; i++;
+    } else field += ch;
+  }
+  if (field !== '' || record.length > 0) { record.push(field); records.push(record); }
+  return records;
+}
+
+const finishedOf = async (page: Page) => Number(/(\d+) \//.exec((await page.getByTestId('grid-progress').textContent()) ?? '')?.[1] ?? '0');
+
+async function pick(page: Page, field: string, options: string[]): Promise<void> {
+  await page.getByRole('combobox', { name: field }).click();
+  for (const name of options) await page.getByRole('option', { name, exact: true }).click();
+  await page.keyboard.press('Escape');
+}
+
+test('a grid of 4 cells trains, survives a reload, renders its heat map; two runs are compared and reported', { timeout: 300_000 }, async () => {
+  const person = await browser.newPerson(server.url);
+  const { page } = person;
+  try {
+    await gridStory(page, person.problems);
+  } catch (error) {
+    await screenshot(page, 'grid-failure');
+    throw new Error(`${(error as Error).message}\nPage problems: ${JSON.stringify(person.problems)}`);
+  }
+});
+
+async function gridStory(page: Page, problems: string[]): Promise<void> {
+  await page.goto('/sign-up');
+  await page.getByLabel('Your name').fill('Gita Gridder');
+  await page.getByLabel('E-mail').fill('gita@example.org');
+  await page.getByLabel('Password', { exact: true }).fill('long-enough-1');
+  await page.getByLabel('Password again').fill('long-enough-1');
+  await page.getByRole('button', { name: 'Create account' }).click();
+  await page.waitForURL('**/benches');
+  const token = (await page.evaluate(() => localStorage.getItem('noisewright.token'))) as string;
+  const bench = await api<{ id: string }>('/benches', token, {
+    method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ name: 'Grid lab' }),
+  });
+  const form = new FormData();
+  form.set('name', 'Syllable grammar');
+  form.set('options', JSON.stringify({ mergeDuplicates: true }));
+  form.set('file', new Blob([readFileSync('datasets-demo/syllable-grammar.tsv')]), 'syllable-grammar.tsv');
+  const corpus = await api<{ id: string }>(`/benches/${bench.id}/corpora`, token, { method: 'POST', body: form });
+  shared = { benchId: bench.id, corpusId: corpus.id, token };
+
+  // The grid form: GRU, state size 4 and 8 × seed 1 and 2, a tiny budget.
+  await page.goto(`/benches/${bench.id}/grids`);
+  await page.getByRole('link', { name: 'New grid' }).click();
+  await page.getByLabel('Grid name').fill('Size by seed');
+  await page.getByRole('combobox', { name: 'Corpus' }).click();
+  await page.getByRole('option', { name: /Syllable grammar/ }).click();
+  await page.getByRole('combobox', { name: 'Model' }).click();
+  await page.getByRole('option', { name: 'Teacher-forced GRU' }).click();
+  await pick(page, 'Axis 1 values', ['4', '16', '32']); // 8, 16, 32 were ticked: now 4 and 8
+  await page.getByRole('button', { name: 'Add an axis' }).click();
+  await pick(page, 'Axis 2 values', ['2']); // seed 1 was ticked: now 1 and 2
+  for (const [label, value] of [['Steps', '80'], ['Batch size', '16'], ['Learning rate', '0.02'], ['Measure every (steps)', '20'],
+    ['Save checkpoint every (steps)', '20']] as const) {
+    await page.getByLabel(label, { exact: true }).fill(value);
+  }
+  assert.match((await page.getByTestId('cell-count').textContent()) ?? '', /^\s*4 cells/, 'the form counts 2 × 2 = 4 cells');
+  await screenshot(page, 'grid-01-form');
+  await page.getByRole('button', { name: /Create and train/ }).click();
+  await page.waitForURL(/\/grids\/[0-9a-f-]{36}$/);
+  const gridUrl = new URL(page.url()).pathname;
+  const gridId = gridUrl.split('/').at(-1)!;
+
+  // Training: wait for the first cell to finish, then reload while the others wait or train.
+  await page.waitForFunction(() => /^\s*[1-3] \//.test(document.querySelector('[data-testid=grid-progress]')?.textContent ?? ''), null, { timeout: 120_000 });
+  await screenshot(page, 'grid-02-partly-filled');
+  const beforeReload = await api<GridDto>(`/benches/${bench.id}/grids/${gridId}`, token);
+  const unfinished = beforeReload.cells.filter((c) => c.run && c.run.status !== 'finished').length;
+  assert.ok(unfinished >= 1, 'some cells are still unfinished at the reload');
+  await page.reload();
+  await page.getByTestId('grid-name').waitFor();
+  // After the reload, the page hands the unfinished runs to the tab's queue again; they all finish.
+  await page.getByTestId('grid-done').waitFor({ timeout: 180_000 });
+  assert.equal(await finishedOf(page), 4, 'all four cells finished after the reload');
+  const done = await api<GridDto>(`/benches/${bench.id}/grids/${gridId}`, token);
+  assert.deepEqual(done.cells.map((c) => c.run?.status), ['finished', 'finished', 'finished', 'finished']);
+  for (const cell of done.cells) assert.equal(cell.run?.stepsDone, 80, `${cell.label} trained its full budget`);
+  // The heat map: 2 × 2 filled squares once every run reported its validation bound.
+  await page.waitForFunction(() => document.querySelector('[data-testid=heatmap]')?.getAttribute('data-filled') === '4', null, { timeout: 15_000 });
+  await page.waitForTimeout(500);
+  await screenshot(page, 'grid-03-heatmap');
+
+  // Compare two runs of the grid that differ in state size only.
+  const a = done.cells.find((c) => c.coords[0] === 0 && c.coords[1] === 0)!;
+  const b = done.cells.find((c) => c.coords[0] === 1 && c.coords[1] === 0)!;
+  await page.goto(`/benches/${bench.id}/compare`);
+  await page.getByRole('checkbox', { name: `Compare ${a.run!.name}` }).check();
+  await page.getByRole('checkbox', { name: `Compare ${b.run!.name}` }).check();
+  const table = page.getByTestId('compare-table');
+  await table.waitFor();
+  const sizeRow = table.getByRole('row', { name: /State size/ });
+  assert.match((await sizeRow.textContent()) ?? '', /differs/, 'the state size row is marked as differing');
+  const seedRow = table.getByRole('row', { name: /Seed/ });
+  assert.doesNotMatch((await seedRow.textContent()) ?? '', /differs/, 'the seed row is the same for both runs');
+  await page.waitForTimeout(500);
+  await screenshot(page, 'compare-01-side-by-side');
+
+  // Saved as a report: a stable link, and the CSV parses back to the runs' stored figures.
+  await page.getByRole('button', { name: /Save as report/ }).click();
+  await page.waitForURL(/\/reports\/[0-9a-f-]{36}$/);
+  await page.getByTestId('report-title').waitFor();
+  await page.waitForTimeout(500);
+  await screenshot(page, 'compare-02-report');
+  const reportId = new URL(page.url()).pathname.split('/').at(-1)!;
+  const csv = await api<string>(`/benches/${bench.id}/reports/${reportId}/export.csv`, token);
+  const records = parseCsv(csv);
+  assert.deepEqual(records[0], ['section', 'name', 'setting', 'value', 'unit']);
+  const bestOfA = records.find((f) => f[1] === 'best validation bound' && f[2] === a.run!.name);
+  assert.ok(bestOfA, 'the CSV holds the best validation bound of the first run');
+  assert.ok(Math.abs(Number(bestOfA[3]) - (a.best ?? NaN)) < 1e-9, `CSV ${bestOfA[3]} equals the grid's figure ${a.best}`);
+  await page.emulateMedia({ media: 'print' });
+  await screenshot(page, 'compare-03-report-print');
+  await page.emulateMedia({ media: 'screen' });
+  assert.deepEqual(problems.filter((p) => !/favicon/.test(p)), [], 'no errors in the page');
+}
+
+test('a learnability check started from the corpus page trains its 11 runs and shows the verdict', { timeout: 300_000 }, async () => {
+  assert.ok(shared, 'the first test set up a bench and a corpus');
+  const person = await browser.newPerson(server.url);
+  const { page } = person;
+  try {
+    await page.goto('/sign-in');
+    await page.getByLabel('E-mail').fill('gita@example.org');
+    await page.getByLabel('Password').fill('long-enough-1');
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.waitForURL('**/benches');
+    await page.goto(`/benches/${shared.benchId}/corpora/${shared.corpusId}`);
+    await page.getByRole('button', { name: 'Check learnability' }).click();
+    await page.getByLabel('Training steps per model').fill('10');
+    await page.getByRole('button', { name: 'Start the check' }).click();
+    await page.waitForURL(/\/grids\/[0-9a-f-]{36}$/);
+    await page.getByTestId('verdict-models').waitFor();
+    await page.getByTestId('grid-done').waitFor({ timeout: 240_000 });
+    const gridId = new URL(page.url()).pathname.split('/').at(-1)!;
+    const verdict = await api<{ rows: { model: string; bitsPerChar: number | null }[]; ngramFloor: { bitsPerChar: number } | null;
+      comparisons: { onPar: boolean | null }[] }>(`/benches/${shared.benchId}/grids/${gridId}/verdict`, shared.token);
+    assert.equal(verdict.rows.length, 11, 'n-gram orders 1–5, GRU and state-space model at 8/16/32');
+    // Bits per character are positive: letter entropy of a syllable corpus lies between 1 and log2(27) ≈ 4.75 bits (closed form of the upper end).
+    for (const r of verdict.rows) assert.ok(r.bitsPerChar !== null && r.bitsPerChar > 0.5 && r.bitsPerChar < 6, `${r.model}: ${r.bitsPerChar}`);
+    assert.ok(verdict.ngramFloor && verdict.ngramFloor.bitsPerChar === Math.min(...verdict.rows.filter((r) => r.model.startsWith('ngram')).map((r) => r.bitsPerChar!)),
+      'the n-gram floor is the best n-gram');
+    await page.waitForFunction(() => !/not yet known/.test(document.querySelector('[data-testid=verdict-on-par]')?.textContent ?? 'not yet known'), null, { timeout: 15_000 });
+    const answers = await page.getByTestId('verdict-on-par').locator('tbody tr td:last-child').allTextContents();
+    assert.deepEqual(answers.map((a) => a.trim()).filter((a) => a === 'yes' || a === 'no').length, 3, `one on-par answer per state size: ${answers}`);
+    await page.waitForTimeout(500);
+    await screenshot(page, 'grid-04-learnability-verdict');
+    assert.deepEqual(person.problems.filter((p) => !/favicon/.test(p)), [], 'no errors in the page');
+  } catch (error) {
+    await screenshot(page, 'grid-learnability-failure');
+    throw new Error(`${(error as Error).message}\nPage problems: ${JSON.stringify(person.problems)}`);
+  }
+});
