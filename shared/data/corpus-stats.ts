@@ -1,5 +1,5 @@
 /**
- * Corpus statistics for the corpus page and reports (PRODUCT.md capability 1, MODEL.md section 1).
+ * Corpus statistics for the corpus page and reports (docs/MODEL.md section 1).
  *
  * - Unigram word entropy H(p_data) in bits, with p_data(w) = count(w) / tokens.
  * - Letter entropy in bits: entropy of the token-weighted character distribution, i.e. every character

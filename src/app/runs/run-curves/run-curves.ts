@@ -11,7 +11,7 @@ echarts.use([LineChart, GridComponent, LegendComponent, TooltipComponent, Canvas
 
 const RENDER_EVERY_MS = 2000;
 
-/** Our palette (PRODUCT.md look): deep teal, amber for live activity, and two calm companions. */
+/** Our palette (the product look): deep teal, amber for live activity, and two calm companions. */
 const LINES = [
   { key: SERIES.train, name: 'Training bound', axis: 0, color: '#0f5e5a' },
   { key: SERIES.validation, name: 'Validation bound', axis: 0, color: '#c7861a' },
