@@ -3,30 +3,15 @@
  * fake) that starts one module worker and wraps it with comlink as a typed `Remote<EvaluatorApi>`.
  */
 import { InjectionToken } from '@angular/core';
-import { releaseProxy, wrap, type Remote } from 'comlink';
 import type { EvaluatorApi } from './evaluator-api';
+import { wrapWorker, type WorkerHandle } from './worker-handle';
 
-export interface EvaluatorHandle {
-  readonly api: Remote<EvaluatorApi>;
-  /** Releases the comlink proxy and ends the worker (its tensors go with it). */
-  close(): void;
-}
+export type EvaluatorHandle = WorkerHandle<EvaluatorApi>;
 
 export type EvaluatorFactory = () => EvaluatorHandle;
 
 export function createWorkerEvaluator(): EvaluatorHandle {
-  const worker = new Worker(new URL('./evaluator.worker', import.meta.url), { type: 'module', name: 'noisewright-evaluator' });
-  const api = wrap<EvaluatorApi>(worker);
-  let closed = false;
-  return {
-    api,
-    close() {
-      if (closed) return;
-      closed = true;
-      api[releaseProxy]();
-      worker.terminate();
-    },
-  };
+  return wrapWorker<EvaluatorApi>(new Worker(new URL('./evaluator.worker', import.meta.url), { type: 'module', name: 'noisewright-evaluator' }));
 }
 
 export const EVALUATOR_FACTORY = new InjectionToken<EvaluatorFactory>('Noisewright evaluation worker factory', {

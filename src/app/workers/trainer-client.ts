@@ -4,32 +4,17 @@
  * typed `Remote<TrainerApi>`.
  */
 import { InjectionToken } from '@angular/core';
-import { releaseProxy, wrap, type Remote } from 'comlink';
 import { TrainerErrorCode } from '../../../shared/model/trainer-errors';
 import type { TrainerApi, TrainerErrorShape } from './trainer-api';
+import { wrapWorker, type WorkerHandle } from './worker-handle';
 
-export interface TrainerHandle {
-  readonly api: Remote<TrainerApi>;
-  /** Releases the comlink proxy and ends the worker (its tensors go with it). */
-  close(): void;
-}
+export type TrainerHandle = WorkerHandle<TrainerApi>;
 
 export type TrainerFactory = () => TrainerHandle;
 
 /** Starts a real module worker running `trainer.worker.ts`. */
 export function createWorkerTrainer(): TrainerHandle {
-  const worker = new Worker(new URL('./trainer.worker', import.meta.url), { type: 'module', name: 'noisewright-trainer' });
-  const api = wrap<TrainerApi>(worker);
-  let closed = false;
-  return {
-    api,
-    close() {
-      if (closed) return;
-      closed = true;
-      api[releaseProxy]();
-      worker.terminate();
-    },
-  };
+  return wrapWorker<TrainerApi>(new Worker(new URL('./trainer.worker', import.meta.url), { type: 'module', name: 'noisewright-trainer' }));
 }
 
 export const TRAINER_FACTORY = new InjectionToken<TrainerFactory>('Noisewright trainer worker factory', {
