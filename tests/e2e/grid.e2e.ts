@@ -6,12 +6,12 @@
  * Last, a learnability check with a tiny budget is started from the corpus page and fills its verdict table.
  */
 import assert from 'node:assert/strict';
-import { readFileSync } from 'node:fs';
 import { after, before, test } from 'node:test';
 import type { Page } from 'playwright-core';
 import type { GridDto } from '../../shared/api/grids';
 import { launchBrowser, screenshot, type TestBrowser } from './support/browser';
 import { startTestServer, type TestServer } from './support/test-server';
+import { benchWithSyllableCorpus, callApi, signUpThroughUi } from './support/workbench';
 
 let server: TestServer;
 let browser: TestBrowser;
@@ -28,12 +28,7 @@ after(async () => {
   await server?.stop();
 });
 
-async function api<T>(path: string, token: string, init: RequestInit = {}): Promise<T> {
-  const res = await fetch(`${server.url}/api${path}`, { ...init, headers: { Authorization: `Bearer ${token}`, ...(init.headers ?? {}) } });
-  if (!res.ok) throw new Error(`${init.method ?? 'GET'} ${path} answered ${res.status}: ${await res.text()}`);
-  const type = res.headers.get('content-type') ?? '';
-  return (type.includes('json') ? await res.json() : await res.text()) as T;
-}
+const api = <T>(path: string, token: string, init: RequestInit = {}): Promise<T> => callApi<T>(server.url, path, token, init);
 
 /** A small RFC 4180 reader (section 2: quoted fields, doubled quotes, CRLF records), written apart from the exporter. */
 function parseCsv(text: string): string[][] {
@@ -74,23 +69,10 @@ test('a grid of 4 cells trains, survives a reload, renders its heat map; two run
 });
 
 async function gridStory(page: Page, problems: string[]): Promise<void> {
-  await page.goto('/sign-up');
-  await page.getByLabel('Your name').fill('Gita Gridder');
-  await page.getByLabel('E-mail').fill('gita@example.org');
-  await page.getByLabel('Password', { exact: true }).fill('long-enough-1');
-  await page.getByLabel('Password again').fill('long-enough-1');
-  await page.getByRole('button', { name: 'Create account' }).click();
-  await page.waitForURL('**/benches');
-  const token = (await page.evaluate(() => localStorage.getItem('noisewright.token'))) as string;
-  const bench = await api<{ id: string }>('/benches', token, {
-    method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ name: 'Grid lab' }),
-  });
-  const form = new FormData();
-  form.set('name', 'Syllable grammar');
-  form.set('options', JSON.stringify({ mergeDuplicates: true }));
-  form.set('file', new Blob([readFileSync('datasets-demo/syllable-grammar.tsv')]), 'syllable-grammar.tsv');
-  const corpus = await api<{ id: string }>(`/benches/${bench.id}/corpora`, token, { method: 'POST', body: form });
-  shared = { benchId: bench.id, corpusId: corpus.id, token };
+  const token = await signUpThroughUi(page, 'Gita Gridder', 'gita@example.org');
+  const { benchId, corpusId } = await benchWithSyllableCorpus(server.url, token, 'Grid lab');
+  const bench = { id: benchId };
+  shared = { benchId, corpusId, token };
 
   // The grid form: GRU, state size 4 and 8 × seed 1 and 2, a tiny budget.
   await page.goto(`/benches/${bench.id}/grids`);

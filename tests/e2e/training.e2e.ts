@@ -9,11 +9,12 @@
  * 50–300 ms are still seen, so that target is reported, not asserted (see the README).
  */
 import assert from 'node:assert/strict';
-import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { mkdirSync, writeFileSync } from 'node:fs';
 import { after, before, test } from 'node:test';
 import type { Page } from 'playwright-core';
 import { launchBrowser, screenshot, type TestBrowser } from './support/browser';
 import { startTestServer, type TestServer } from './support/test-server';
+import { benchWithSyllableCorpus, callApi, signUpThroughUi } from './support/workbench';
 
 let server: TestServer;
 let browser: TestBrowser;
@@ -28,11 +29,7 @@ after(async () => {
   await server?.stop();
 });
 
-async function api<T>(path: string, token: string, init: RequestInit = {}): Promise<T> {
-  const res = await fetch(`${server.url}/api${path}`, { ...init, headers: { Authorization: `Bearer ${token}`, ...(init.headers ?? {}) } });
-  if (!res.ok) throw new Error(`${init.method ?? 'GET'} ${path} answered ${res.status}: ${await res.text()}`);
-  return (await res.json()) as T;
-}
+const api = <T>(path: string, token: string, init: RequestInit = {}): Promise<T> => callApi<T>(server.url, path, token, init);
 
 const LONG_TASK_PROBE = () => {
   const w = window as unknown as { __longTasks: number[]; __frames: string[] };
@@ -72,22 +69,8 @@ async function trainingStory(person: Awaited<ReturnType<TestBrowser['newPerson']
   const { page } = person;
 
   // An account through the UI, then a bench and a demo corpus through the REST API.
-  await page.goto('/sign-up');
-  await page.getByLabel('Your name').fill('Tara Trainer');
-  await page.getByLabel('E-mail').fill('tara@example.org');
-  await page.getByLabel('Password', { exact: true }).fill('long-enough-1');
-  await page.getByLabel('Password again').fill('long-enough-1');
-  await page.getByRole('button', { name: 'Create account' }).click();
-  await page.waitForURL('**/benches');
-  const token = (await page.evaluate(() => localStorage.getItem('noisewright.token'))) as string;
-  const bench = await api<{ id: string }>('/benches', token, {
-    method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ name: 'Training lab' }),
-  });
-  const form = new FormData();
-  form.set('name', 'Syllable grammar');
-  form.set('options', JSON.stringify({ mergeDuplicates: true }));
-  form.set('file', new Blob([readFileSync('datasets-demo/syllable-grammar.tsv')]), 'syllable-grammar.tsv');
-  await api(`/benches/${bench.id}/corpora`, token, { method: 'POST', body: form });
+  const token = await signUpThroughUi(page, 'Tara Trainer', 'tara@example.org');
+  const bench = { id: (await benchWithSyllableCorpus(server.url, token, 'Training lab')).benchId };
 
   // The new-run form: a small model so that a few hundred steps take well under a minute.
   await page.goto(`/benches/${bench.id}/runs`);
