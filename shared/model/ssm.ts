@@ -115,8 +115,10 @@ export class StateSpaceModel {
       let h = tf.tile(tf.reshape(this.core.get('h0'), [1, d]), [n, 1]) as tf.Tensor2D;
       const states: tf.Tensor2D[] = [];
       const noise = tf.unstack(xi) as tf.Tensor2D[];
+      // The flow's per-call set-up (masks, stacked conditioner weights) once, not once per step.
+      const flow = this.generativeFlow.prepare();
       for (let t = 0; t < tMax; t++) {
-        h = this.generativeFlow.forward(h, noise[t] as tf.Tensor2D).y;
+        h = flow.forward(tf.add(tf.matMul(h, flow.contextW), flow.contextB) as tf.Tensor2D, noise[t] as tf.Tensor2D).y;
         states.push(h);
       }
       return tf.stack(states, 1) as tf.Tensor3D;
