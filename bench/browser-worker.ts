@@ -47,10 +47,12 @@ import '@tensorflow/tfjs-core/dist/register_all_gradients';
 import '@tensorflow/tfjs-backend-cpu';
 import { getThreadsCount, setWasmPaths } from '@tensorflow/tfjs-backend-wasm';
 import { createEngine } from './src/app/workers/run-engines';
+import { installWasmSliceKernels } from './shared/model/wasm-slice-kernels';
 self.onmessage = async (e) => {
   const { settings, set, steps, warmup } = e.data;
   setWasmPaths(new URL('tfjs-wasm/', self.location.href).href);
-  tf.env().set('WASM_HAS_MULTITHREAD_SUPPORT', false); // as in the app's worker (trainer.worker.ts)
+  tf.env().set('WASM_HAS_MULTITHREAD_SUPPORT', false); // as in the app's worker (worker-backend.ts)
+  installWasmSliceKernels(); // as in the app's worker
   await tf.setBackend('wasm');
   await tf.ready();
   const engine = createEngine(settings, set, null);
@@ -92,7 +94,7 @@ async function inBrowser(set: TrainingSet): Promise<Timing> {
     define: { 'process.env.NODE_ENV': '"production"' },
   });
   const { server, url } = await serve(out.outputFiles[0]?.text ?? '');
-  const browser = await chromium.launch({ executablePath: process.env['CHROMIUM_PATH'] ?? '/usr/bin/chromium', args: ['--headless', '--no-sandbox'] });
+  const browser = await chromium.launch({ executablePath: process.env['CHROMIUM_PATH'] ?? '/usr/bin/chromium', args: ['--headless', '--no-sandbox', ...(process.env['BENCH_CHROMIUM_FLAGS'] ?? '').split(' ').filter(Boolean)] });
   try {
     const page = await browser.newPage();
     await page.goto(url);

@@ -4,6 +4,7 @@
 // Both packages resolve to the same `@tensorflow/tfjs-core` module, so there is a single engine.
 import * as tf from '@tensorflow/tfjs';
 import '@tensorflow/tfjs-backend-wasm';
+import { installWasmSliceKernels } from '../model/wasm-slice-kernels';
 
 export type NodeBackendName = 'wasm' | 'cpu';
 
@@ -15,6 +16,7 @@ export async function initNodeBackend(name: NodeBackendName = 'wasm'): Promise<s
   if (name !== 'wasm' && name !== 'cpu') {
     throw new Error(`Unknown TF.js backend "${String(name)}": use "wasm" or "cpu".`);
   }
+  installWasmSliceKernels();
   if (tf.getBackend() === name) return name;
   let ok = false;
   try {
