@@ -70,6 +70,12 @@ export interface ReportSummaryDto {
   link: string;
 }
 
+/** `GET /benches/:benchId/reports?limit=&offset=`: newest first. */
+export interface ReportPage {
+  items: ReportSummaryDto[];
+  total: number;
+}
+
 export interface ReportDto extends ReportSummaryDto {
   snapshot: ReportSnapshot;
 }
@@ -165,19 +171,7 @@ export function gridFigures(grid: GridDto, verdict?: LearnabilityVerdict): Repor
   return out;
 }
 
-// ---------------------------------------------------------------- CSV (RFC 4180)
+// ---------------------------------------------------------------- CSV
 
+/** Columns of the report CSV; the server writes it (server/http/csv.ts, with the spreadsheet-formula guard). */
 export const REPORT_CSV_HEADER = ['section', 'name', 'setting', 'value', 'unit'] as const;
-
-/** One field per RFC 4180 section 2: quoted when it holds a comma, a quote, a line break or edge spaces; quotes doubled. */
-function csvField(v: string): string {
-  const flat = v.replace(/\r\n|\r|\n/g, ' ');
-  return /[",]|^\s|\s$/.test(flat) ? `"${flat.replace(/"/g, '""')}"` : flat;
-}
-
-/** The figures as CSV text: a header row, then one row per figure, CRLF line ends (RFC 4180 section 2.1). */
-export function figuresToCsv(figures: readonly ReportFigure[]): string {
-  const lines = [REPORT_CSV_HEADER.join(',')];
-  for (const f of figures) lines.push([f.section, f.name, f.setting, String(f.value), f.unit].map(csvField).join(','));
-  return `${lines.join('\r\n')}\r\n`;
-}

@@ -2,7 +2,7 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { EvaluationDto } from '../../../shared/api/evaluations';
 import type { GridDto } from '../../../shared/api/grids';
-import type { ReportDto, ReportFigure, ReportSummaryDto } from '../../../shared/api/reports';
+import type { ReportDto, ReportFigure, ReportPage } from '../../../shared/api/reports';
 import type { CheckpointDto, RunDto } from '../../../shared/api/runs';
 import { bearer, countRows, createBenchFixture, createTestApp, type BenchFixture, type TestApp } from '../../testing/test-app';
 import { ssmResultsFixture } from '../evaluations/evaluation-test-fixture';
@@ -77,8 +77,9 @@ describe('reports', () => {
     expect(bitsPerChar.value).toBe(2.3);
     const read = await api().get(`${reportsUrl()}/${report.id}`).set(bearer(f.tokens.viewer));
     expect(read.body).toEqual(report);
-    const list = (await api().get(reportsUrl()).set(bearer(f.tokens.viewer))).body as ReportSummaryDto[];
-    expect(list.map((r) => r.id)).toEqual([report.id]);
+    const list = (await api().get(reportsUrl()).set(bearer(f.tokens.viewer))).body as ReportPage;
+    expect(list.items.map((r) => r.id)).toEqual([report.id]);
+    expect(list.total).toBe(1);
   });
 
   it('exports CSV that parses back to the same values as the JSON export', async () => {
@@ -141,5 +142,68 @@ describe('reports', () => {
     const ok = await api().delete(`${reportsUrl()}/${report.id}`).set(bearer(f.tokens.coach));
     expect(ok.status).toBe(204);
     expect((await api().get(`${reportsUrl()}/${report.id}`).set(bearer(f.tokens.viewer))).status).toBe(404);
+  });
+});
+
+describe('report CSV and spreadsheet formulas', () => {
+  it('exports a run named like a formula as text: =HYPERLINK(...) becomes \'=HYPERLINK(...)', async () => {
+    // OWASP, "CSV Injection": cells beginning with =, +, -, @, tab or CR get a leading single quote.
+    const evil = '=HYPERLINK("http://example.org/x","open me")';
+    const run = await createRun(t, f.benchId, f.tokens.member, ssmRunBody(corpusId, evil));
+    const cmp = await api().post(reportsUrl()).set(bearer(f.tokens.member)).send({ kind: 'comparison', title: '@risky title', sourceIds: [run.id] });
+    expect(cmp.status).toBe(201);
+    // The stored snapshot keeps the name as typed; only the CSV cell is guarded.
+    expect((cmp.body as ReportDto).snapshot.figures.some((x) => x.setting === evil)).toBe(true);
+    const csv = await api().get(`${reportsUrl()}/${cmp.body.id}/export.csv`).set(bearer(f.tokens.viewer));
+    expect(csv.status).toBe(200);
+    const rows = readCsv(csv.text).slice(1);
+    const settings = rows.map((r) => r[2]!);
+    expect(settings).toContain(`'${evil}`);
+    expect(settings).not.toContain(evil);
+    // The raw text holds the guarded cell quoted, never a bare =HYPERLINK at a field start.
+    expect(csv.text).toContain('"\'=HYPERLINK(""http://example.org/x"",""open me"")"');
+    expect(csv.text).not.toMatch(/(^|,)=HYPERLINK/m);
+    // Every value cell that was a number in the snapshot still reads back as that number.
+    const figures = (cmp.body as ReportDto).snapshot.figures;
+    rows.forEach((r, i) => {
+      const x = figures[i]!;
+      if (typeof x.value === 'number') expect(Number(r[3])).toBe(x.value);
+    });
+  });
+});
+
+describe('listing reports', () => {
+  it('pages the reports newest first, with the total', async () => {
+    const before = ((await api().get(reportsUrl()).set(bearer(f.tokens.viewer))).body as ReportPage).total;
+    const made: string[] = [];
+    for (const title of ['Older', 'Middle', 'Newest']) {
+      t.clock.advance(60_000);
+      const res = await api().post(reportsUrl()).set(bearer(f.tokens.member)).send({ kind: 'comparison', title, sourceIds: [runB.id] });
+      expect(res.status).toBe(201);
+      made.push(res.body.id as string);
+    }
+    const first = (await api().get(`${reportsUrl()}?limit=2&offset=0`).set(bearer(f.tokens.viewer))).body as ReportPage;
+    expect(first.total).toBe(before + 3);
+    expect(first.items.map((r) => r.title)).toEqual(['Newest', 'Middle']);
+    expect(first.items[0]).toMatchObject({ id: made[2], kind: 'comparison', link: `/benches/${f.benchId}/reports/${made[2]}` });
+    expect(first.items[0]!.createdBy?.id).toBe(f.userIds.member);
+    expect(first.items[0]).not.toHaveProperty('snapshot');
+    const second = (await api().get(`${reportsUrl()}?limit=2&offset=2`).set(bearer(f.tokens.viewer))).body as ReportPage;
+    expect(second.items[0]!.title).toBe('Older');
+    expect(second.items.length).toBe(Math.min(2, before + 1));
+    const dates = [...first.items, ...second.items].map((r) => Date.parse(r.createdAt));
+    expect(dates).toEqual([...dates].sort((a, b) => b - a));
+  });
+
+  it('refuses a bad page size and hides the list from people outside the bench', async () => {
+    const bad = await api().get(`${reportsUrl()}?limit=0&offset=-1`).set(bearer(f.tokens.viewer));
+    expect(bad.status).toBe(422);
+    expect(Object.keys(bad.body.error.fields).sort()).toEqual(['limit', 'offset']);
+    // Project rule (DEVELOPERS.md, architecture): a non-member gets 404, so the bench's existence is not revealed.
+    const outsider = await api().get(reportsUrl()).set(bearer(f.tokens.outsider));
+    expect(outsider.status).toBe(404);
+    expect(outsider.body).not.toHaveProperty('items');
+    const anonymous = await api().get(reportsUrl());
+    expect(anonymous.status).toBe(401);
   });
 });

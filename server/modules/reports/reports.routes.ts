@@ -1,15 +1,17 @@
 /**
  * Reports, mounted at /api/benches/:benchId/reports: create (the server freezes the figures of the
- * sources), list, read, CSV and JSON exports, delete. Viewers read and export; members create reports;
+ * sources), list (paged, newest first), read, CSV and JSON exports, delete. Viewers read and export; members create reports;
  * the creator, coaches and owners delete them. The client shows a report at `/benches/:benchId/reports/:reportId`.
  */
 import { Router, type Request } from 'express';
-import { createReportSchema, figuresToCsv, reportLink, type ReportDto, type ReportSummaryDto } from '../../../shared/api/reports';
+import { createReportSchema, REPORT_CSV_HEADER, reportLink, type ReportDto, type ReportPage, type ReportSummaryDto } from '../../../shared/api/reports';
+import { pageQuerySchema } from '../../../shared/api/schemas';
 import { roleAtLeast } from '../../../shared/api/types';
 import type { AppContext } from '../../app-context';
 import { notFound, roleTooLow } from '../../http-error';
+import { toCsv } from '../../http/csv';
 import { requireRole } from '../../middleware/bench-access';
-import { parseBody } from '../../middleware/validate';
+import { parseBody, parseQuery } from '../../middleware/validate';
 import { currentBench, currentUser } from '../../request-state';
 import { ActivityRepository } from '../activity/activity.repository';
 import { buildSnapshot } from './report-snapshot';
@@ -46,8 +48,13 @@ export function reportRoutes(ctx: AppContext): Router {
   }
 
   router.get('/', requireRole('viewer'), async (req, res) => {
-    const list = await ctx.orm.em.find(Report, { bench: currentBench(req).bench }, { orderBy: { createdAt: 'desc', id: 'asc' }, populate: ['createdBy'] });
-    res.json(list.map(summaryOf));
+    const { limit, offset } = parseQuery(pageQuerySchema, req.query);
+    const [list, total] = await ctx.orm.em.findAndCount(
+      Report,
+      { bench: currentBench(req).bench },
+      { orderBy: { createdAt: 'desc', id: 'asc' }, populate: ['createdBy'], limit, offset },
+    );
+    res.json({ items: list.map(summaryOf), total } satisfies ReportPage);
   });
 
   router.post('/', requireRole('member'), async (req, res) => {
@@ -70,7 +77,7 @@ export function reportRoutes(ctx: AppContext): Router {
     const report = await loadReport(req);
     res.type('text/csv; charset=utf-8; header=present');
     res.attachment(`${fileStem(report)}.csv`);
-    res.send(figuresToCsv(report.snapshot.figures));
+    res.send(toCsv([REPORT_CSV_HEADER, ...report.snapshot.figures.map((x) => [x.section, x.name, x.setting, x.value, x.unit])]));
   });
 
   router.get('/:reportId/export.json', requireRole('viewer'), async (req, res) => {
