@@ -51,6 +51,27 @@ describe('reading corpora', () => {
     expect(Object.keys(bad.body.error.fields).sort()).toEqual(['limit', 'sort']);
   });
 
+  it('searches words in any letter case and keeps each spelling as its own row', async () => {
+    // Counts chosen by hand; lower-casing off so the spellings stay apart.
+    const mixed = 'word\tcount\nharbour\t5\nHarbour\t3\nHARBOUR\t2\nharbinger\t4\narbour\t1\nÄrger\t6\närgern\t7\n';
+    // On a bench of its own, so the other tests' lists and activity stay as they expect.
+    const bench = await api().post('/api/benches').set(bearer(f.tokens.member)).send({ name: 'Harbour words' });
+    const res = await upload(t, bench.body.id, f.tokens.member, { name: 'mixed.tsv', content: mixed }, { name: 'Mixed case', options: { normalise: { lowerCase: false } } });
+    expect(res.status).toBe(201);
+    const words = `/api/benches/${bench.body.id}/corpora/${(res.body as CorpusDetail).id}/words`;
+    const page = async (query: string) => ((await api().get(`${words}?${query}`).set(bearer(f.tokens.member))).body as CorpusWordPage);
+    const harb = await page(`q=HARB&sort=count&dir=desc`);
+    expect(harb.total).toBe(4);
+    expect(harb.items.map((w) => [w.word, w.count])).toEqual([['harbour', 5], ['harbinger', 4], ['Harbour', 3], ['HARBOUR', 2]]);
+    expect((await page('q=bour&limit=2&sort=word&dir=asc')).items.map((w) => w.word)).toEqual(['HARBOUR', 'Harbour']);
+    expect((await page('q=bour')).total).toBe(4);
+    // Beyond ASCII: SQLite's own LIKE would not fold Ä (sqlite.org/lang_expr.html, "The LIKE operator").
+    expect((await page(`q=${encodeURIComponent('äRG')}&sort=word&dir=asc`)).items.map((w) => w.word)).toEqual(['Ärger', 'ärgern']);
+    // GLOB wildcards in the search text are plain characters.
+    expect((await page(`q=${encodeURIComponent('h*r')}`)).total).toBe(0);
+    expect((await page(`q=${encodeURIComponent('?')}`)).total).toBe(0);
+  });
+
   it('exports TSV that parses back to the same words and counts', async () => {
     const res = await api().get(`${base()}/${corpusId}/export.tsv`).set(bearer(f.tokens.viewer));
     expect(res.status).toBe(200);

@@ -9,6 +9,7 @@ import type { AnalysedUpload } from './corpus-import';
 import { wordRows } from './corpus-import';
 import { CorpusWord } from './corpus-word.entity';
 import { Corpus } from './corpus.entity';
+import { caseInsensitiveGlob } from './word-search';
 
 /** Rows per INSERT statement (5 parameters each stays far below SQLite's parameter limit). */
 const INSERT_CHUNK = 2000;
@@ -99,8 +100,8 @@ export class CorpusRepository {
       params.push(q.split);
     }
     if (q.q) {
-      where.push("instr(word, ?) > 0");
-      params.push(q.q);
+      where.push('word glob ?');
+      params.push(caseInsensitiveGlob(q.q));
     }
     const conn = this.em.getConnection();
     const total: { n: number }[] = await conn.execute(`select count(*) as n from corpus_words where ${where.join(' and ')}`, params);
