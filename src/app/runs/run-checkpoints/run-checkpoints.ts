@@ -15,7 +15,7 @@ const REASONS: Record<CheckpointDto['reason'], string> = { auto: 'autosave', sto
   imports: [DatePipe, DecimalPipe, MatButtonModule, MatIconModule, MatTableModule, RouterLink],
   template: `
     <div class="nw-table-wrap" data-testid="checkpoints">
-      <table mat-table [dataSource]="checkpoints()" aria-label="Checkpoints of the run">
+      <table mat-table [dataSource]="checkpoints()" [trackBy]="byId" aria-label="Checkpoints of the run">
         <ng-container matColumnDef="step">
           <th mat-header-cell *matHeaderCellDef class="nw-num">Step</th>
           <td mat-cell *matCellDef="let c" class="nw-num">{{ c.step | number }}</td>
@@ -63,5 +63,7 @@ export class RunCheckpoints {
   readonly resumeFrom = output<CheckpointDto>();
   readonly download = output<CheckpointDto>();
   protected reasonOf(c: CheckpointDto): string { return REASONS[c.reason]; }
+  /** Rows are kept when the list is reloaded after a save: only the new checkpoint's row is rendered. */
+  protected readonly byId = (_: number, c: CheckpointDto): string => c.id;
   protected readonly columns = ['step', 'bound', 'reason', 'size', 'createdAt', 'actions'];
 }

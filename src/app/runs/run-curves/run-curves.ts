@@ -1,33 +1,35 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, afterNextRender, inject, input, viewChild } from '@angular/core';
-import { LineChart } from 'echarts/charts';
-import { GridComponent, LegendComponent, TooltipComponent } from 'echarts/components';
-import * as echarts from 'echarts/core';
-import { CanvasRenderer } from 'echarts/renderers';
 import type { Observable, Subscription } from 'rxjs';
+import uPlot from 'uplot';
 import type { CurvePoint } from '../live-run';
 import { SERIES } from '../live-run';
+import { alignSeries } from './align-series';
 
-echarts.use([LineChart, GridComponent, LegendComponent, TooltipComponent, CanvasRenderer]);
-
-const RENDER_EVERY_MS = 2000;
+/** Live points are drawn at most this often; a redraw costs about a millisecond of main-thread time. */
+const RENDER_EVERY_MS = 1000;
+const HEIGHT = 300;
 
 /** Our palette (the product look): deep teal, amber for live activity, and two calm companions. */
 const LINES = [
-  { key: SERIES.train, name: 'Training bound', axis: 0, color: '#0f5e5a' },
-  { key: SERIES.validation, name: 'Validation bound', axis: 0, color: '#c7861a' },
-  { key: SERIES.entropy, name: 'Observation entropy', axis: 1, color: '#6b5b95' },
-  { key: SERIES.noise, name: 'Mean noise MI', axis: 1, color: '#8a9a5b' },
+  { key: SERIES.train, name: 'Training bound', scale: 'bits', color: '#0f5e5a', points: false },
+  { key: SERIES.validation, name: 'Validation bound', scale: 'bits', color: '#c7861a', points: true },
+  { key: SERIES.entropy, name: 'Observation entropy', scale: 'info', color: '#6b5b95', points: true },
+  { key: SERIES.noise, name: 'Mean noise MI', scale: 'info', color: '#8a9a5b', points: true },
 ] as const;
 
+const AXIS_FONT = '12px "IBM Plex Sans", system-ui, sans-serif';
+const fixed3 = (_: uPlot, v: number | null) => (v === null || !Number.isFinite(v) ? '—' : v.toFixed(3));
+
 /**
- * Live curves of a run: history from the server, then points from the worker appended with `setOption`
- * (only the series data change; Angular does not re-render anything for a new point).
+ * Live curves of a run: history from the server, then points from the worker. Drawn with uPlot on a canvas:
+ * a redraw is a single short main-thread task and nothing runs between redraws, so the page stays responsive
+ * while a worker trains. Angular does not re-render anything for a new point.
  */
 @Component({
   selector: 'nw-run-curves',
   changeDetection: ChangeDetectionStrategy.OnPush,
   template: `<div #host class="chart" role="img" aria-label="Training curves: bounds and noise figures by step"></div>`,
-  styles: `.chart { width: 100%; height: 320px; }`,
+  styles: `.chart { width: 100%; min-height: ${HEIGHT}px; }`,
 })
 export class RunCurves {
   /** Points already stored on the server, by series. */
@@ -35,7 +37,7 @@ export class RunCurves {
   /** New points while the run trains in this tab. */
   readonly live = input<Observable<CurvePoint[]> | null>(null);
   private readonly host = viewChild.required<ElementRef<HTMLDivElement>>('host');
-  private chart: echarts.ECharts | null = null;
+  private plot: uPlot | null = null;
   private readonly data = new Map<string, [number, number][]>(LINES.map((l) => [l.key, []]));
   private subscription: Subscription | null = null;
   private renderTimer: ReturnType<typeof setTimeout> | null = null;
@@ -44,32 +46,27 @@ export class RunCurves {
   constructor() {
     const destroyRef = inject(DestroyRef);
     afterNextRender(() => {
-      this.chart = echarts.init(this.host().nativeElement, null, { renderer: 'canvas' });
-      this.chart.setOption({
-        animation: false,
-        grid: { left: 56, right: 56, top: 40, bottom: 36 },
-        legend: { top: 0, textStyle: { fontFamily: 'IBM Plex Sans' } },
-        tooltip: { trigger: 'axis', valueFormatter: (v: unknown) => (typeof v === 'number' ? v.toFixed(3) : String(v)) },
-        xAxis: { type: 'value', name: 'step', nameLocation: 'middle', nameGap: 24, min: 0 },
-        yAxis: [
-          { type: 'value', name: 'bits/char', scale: true },
-          { type: 'value', name: 'bits', scale: true, splitLine: { show: false } },
-        ],
-        series: LINES.map((l) => ({
-          id: l.key, name: l.name, type: 'line', yAxisIndex: l.axis, showSymbol: l.key !== SERIES.train,
-          sampling: l.key === SERIES.train ? 'lttb' : undefined,
-          symbolSize: 5, lineStyle: { width: 2 }, color: l.color, data: [],
-        })),
-      });
+      const host = this.host().nativeElement;
+      this.plot = new uPlot(this.options(Math.max(320, host.clientWidth)), this.aligned(), host);
       this.reset(this.history());
       this.subscription = this.live()?.subscribe((points) => this.append(points)) ?? null;
-      const resize = () => this.chart?.resize();
-      window.addEventListener('resize', resize);
+      // Resize in the next frame, not inside the observer: resizing the plot changes the host's height, and a
+      // layout change inside the callback would make the observer report a loop.
+      let frame = 0;
+      const resizer = new ResizeObserver(() => {
+        cancelAnimationFrame(frame);
+        frame = requestAnimationFrame(() => {
+          const width = Math.max(320, host.clientWidth);
+          if (this.plot && Math.abs(this.plot.width - width) > 1) this.plot.setSize({ width, height: HEIGHT });
+        });
+      });
+      resizer.observe(host);
       destroyRef.onDestroy(() => {
-        window.removeEventListener('resize', resize);
+        resizer.disconnect();
+        cancelAnimationFrame(frame);
         this.subscription?.unsubscribe();
         if (this.renderTimer !== null) clearTimeout(this.renderTimer);
-        this.chart?.dispose();
+        this.plot?.destroy();
       });
     });
   }
@@ -99,7 +96,7 @@ export class RunCurves {
     this.scheduleRender();
   }
 
-  /** Redraws at most every two seconds while points stream in (each redraw is one short main-thread task). */
+  /** Redraws at most once a second while points stream in. */
   private scheduleRender(): void {
     if (this.renderTimer !== null) return;
     const wait = Math.max(0, RENDER_EVERY_MS - (performance.now() - this.lastRender));
@@ -109,12 +106,41 @@ export class RunCurves {
     }, wait);
   }
 
+  private aligned(): uPlot.AlignedData {
+    return alignSeries(LINES.map((l) => this.data.get(l.key) ?? [])) as uPlot.AlignedData;
+  }
+
   private render(): void {
     this.lastRender = performance.now();
-    this.chart?.setOption({ series: LINES.map((l) => ({ id: l.key, data: this.data.get(l.key) })) }, { lazyUpdate: true });
-    // Point counts per series on the host element (read by the end-to-end test; no Angular re-render).
+    this.plot?.setData(this.aligned());
+    // Point counts and the last step on the host element (read by the end-to-end test; no Angular re-render).
     const host = this.host().nativeElement;
     host.dataset['points'] = String([...this.data.values()].reduce((n, list) => n + list.length, 0));
     host.dataset['lastStep'] = String(this.data.get(SERIES.train)?.at(-1)?.[0] ?? 0);
+  }
+
+  private options(width: number): uPlot.Options {
+    const axis = (label: string, scale: string, side?: 1): uPlot.Axis => ({
+      label, scale, side, font: AXIS_FONT, labelFont: AXIS_FONT, stroke: '#4a4a44',
+      grid: { show: side !== 1, stroke: '#e6dfd0', width: 1 }, ticks: { stroke: '#d6cfbf', width: 1 },
+    });
+    return {
+      width, height: HEIGHT,
+      scales: { x: { time: false } },
+      cursor: { drag: { x: false, y: false } },
+      legend: { live: true },
+      axes: [
+        { ...axis('step', 'x'), grid: { show: false } },
+        axis('bits/char', 'bits'),
+        axis('bits', 'info', 1),
+      ],
+      series: [
+        { label: 'step', value: (_u, v) => (v === null ? '—' : String(v)) },
+        ...LINES.map((l): uPlot.Series => ({
+          label: l.name, scale: l.scale, stroke: l.color, width: 2, spanGaps: true, value: fixed3,
+          points: l.points ? { show: true, size: 5, fill: l.color } : { show: false },
+        })),
+      ],
+    };
   }
 }
