@@ -1,7 +1,7 @@
-import { HttpClient } from '@angular/common/http';
+import { HttpClient, HttpParams } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
-import type { CreateReportRequest, ReportDto } from '../../../shared/api/reports';
+import type { CreateReportRequest, ReportDto, ReportPage } from '../../../shared/api/reports';
 
 const enc = encodeURIComponent;
 
@@ -12,6 +12,12 @@ export class ReportsApi {
 
   private base(benchId: string): string {
     return `/api/benches/${enc(benchId)}/reports`;
+  }
+
+  /** One page of the bench's saved reports, newest first. */
+  list(benchId: string, page: { limit: number; offset: number }): Promise<ReportPage> {
+    const params = new HttpParams().set('limit', page.limit).set('offset', page.offset);
+    return firstValueFrom(this.http.get<ReportPage>(this.base(benchId), { params }));
   }
 
   get(benchId: string, reportId: string): Promise<ReportDto> {
