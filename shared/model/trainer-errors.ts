@@ -14,6 +14,8 @@ export const TrainerErrorCode = {
   BadSettings: 'BAD_SETTINGS',
   /** A call came in the wrong order (e.g. `start` before `init`). */
   WrongState: 'WRONG_STATE',
+  /** The worker could not send a checkpoint to the server (network, sign-in or a refusal; the message says which). */
+  UploadFailed: 'UPLOAD_FAILED',
   /** Anything else (a fault in the training code or the backend). */
   Internal: 'TRAINER_INTERNAL',
 } as const;

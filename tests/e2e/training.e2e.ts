@@ -1,12 +1,10 @@
 /**
  * Training in the browser, end to end in Chromium: a run on a demo corpus is designed in the new-run form,
- * trains in a web worker for a few hundred steps while the curves move, is paused, resumed and stopped; its
- * checkpoint is listed; after a page reload the run continues from that checkpoint. A PerformanceObserver
- * records the main thread's long tasks while the worker trains: the test asserts that the main thread stays
- * mostly idle (long tasks fill under 15 % of the window — training on the main thread would fill nearly all of
- * it), and writes the longest task to tests/artifacts/training-long-tasks.json. Our target is that no task
- * exceeds 50 ms; on a 2-core machine, where the worker, the server and the browser share the cores, tasks of
- * 50–300 ms are still seen, so that target is reported, not asserted (see the README).
+ * trains in a web worker for a few hundred steps while the curves move, is saved by hand, paused, resumed and
+ * stopped; its checkpoints are listed; after a page reload the run continues from the last one. A
+ * PerformanceObserver records the main thread's long tasks (over 50 ms) from step 20 until the Stop click —
+ * while the worker trains and the person saves, pauses and resumes — and the test asserts there are none. The
+ * record (and the slow frames, with the scripts in them) goes to tests/artifacts/training-long-tasks.json.
  */
 import assert from 'node:assert/strict';
 import { mkdirSync, writeFileSync } from 'node:fs';
@@ -39,8 +37,10 @@ const LONG_TASK_PROBE = () => {
   // Which scripts made a slow frame (for the failure message only).
   try {
     new PerformanceObserver((list) => {
-      for (const e of list.getEntries() as unknown as { duration: number; scripts?: { invoker: string; duration: number }[] }[]) {
-        w.__frames.push(`${Math.round(e.duration)}ms: ${(e.scripts ?? []).map((x) => `${x.invoker} ${Math.round(x.duration)}ms`).join(', ')}`);
+      type Script = { invoker: string; duration: number; sourceURL?: string; sourceFunctionName?: string };
+      for (const e of list.getEntries() as unknown as { duration: number; scripts?: Script[] }[]) {
+        const scripts = (e.scripts ?? []).map((x) => `${x.invoker} ${Math.round(x.duration)}ms (${x.sourceURL?.split('/').pop() ?? ''} ${x.sourceFunctionName ?? ''})`);
+        w.__frames.push(`${Math.round(e.duration)}ms: ${scripts.join(', ')}`);
       }
     }).observe({ type: 'long-animation-frame', buffered: false });
   } catch { /* not supported */ }
@@ -111,13 +111,14 @@ async function trainingStory(person: Awaited<ReturnType<TestBrowser['newPerson']
   const pointsBefore = Number(await page.locator('nw-run-curves .chart').getAttribute('data-points'));
   const windowStart = Date.now();
   await waitForStep(page, 120);
-  const windowMs = Date.now() - windowStart;
   const pointsAfter = Number(await page.locator('nw-run-curves .chart').getAttribute('data-points'));
   assert.ok(pointsAfter > pointsBefore, `the curves gain points while training (${pointsBefore} → ${pointsAfter})`);
-  const longTasks = await page.evaluate(() => (window as unknown as { __longTasks: number[] }).__longTasks);
-  const slowFrames = await page.evaluate(() => (window as unknown as { __frames: string[] }).__frames.slice(0, 12));
   await page.getByTestId('samples').waitFor();
   await screenshot(page, 'training-02-live-view');
+
+  // Save by hand: the worker sends the checkpoint; it is listed as saved by hand.
+  await page.getByTestId('save-now').click();
+  await page.getByTestId('checkpoints').getByRole('cell', { name: 'saved by hand' }).waitFor({ timeout: 30_000 });
 
   // Pause: the step count stands still; resume: it moves again.
   await page.getByRole('button', { name: 'Pause' }).click();
@@ -128,6 +129,9 @@ async function trainingStory(person: Awaited<ReturnType<TestBrowser['newPerson']
   await screenshot(page, 'training-03-paused');
   await page.getByRole('button', { name: 'Resume' }).click();
   await waitForStep(page, Math.max(pausedAt + 10, 210));
+  const windowMs = Date.now() - windowStart;
+  const longTasks = await page.evaluate(() => (window as unknown as { __longTasks: number[] }).__longTasks);
+  const slowFrames = await page.evaluate(() => (window as unknown as { __frames: string[] }).__frames.slice(0, 12));
 
   // Stop: a checkpoint is saved and listed with its step.
   await page.getByRole('button', { name: 'Stop' }).click();
@@ -137,6 +141,7 @@ async function trainingStory(person: Awaited<ReturnType<TestBrowser['newPerson']
   const checkpoints = page.getByTestId('checkpoints');
   await checkpoints.getByRole('cell', { name: 'on stop' }).waitFor();
   await checkpoints.getByRole('cell', { name: 'autosave' }).first().waitFor();
+  await checkpoints.getByRole('cell', { name: 'saved by hand' }).waitFor();
   await screenshot(page, 'training-04-stopped-with-checkpoints');
 
   // Reload: the server holds everything; continue from the latest checkpoint.
@@ -161,11 +166,11 @@ async function trainingStory(person: Awaited<ReturnType<TestBrowser['newPerson']
   assert.ok(runUrl.includes(bench.id));
   assert.deepEqual(person.problems.filter((p) => !/favicon/.test(p)), [], 'no errors in the page');
   // Checked last so that a failure here still shows the rest of the story went through.
-  const busyMs = longTasks.reduce((a, b) => a + b, 0);
   mkdirSync('tests/artifacts', { recursive: true });
   writeFileSync('tests/artifacts/training-long-tasks.json', JSON.stringify({
-    windowMs, longTasks, busyMs, maxTaskMs: Math.max(0, ...longTasks), idleLongTasks, slowFrames, targetMs: 50,
+    windowMs, longTasks, maxTaskMs: Math.max(0, ...longTasks), idleLongTasks, slowFrames, limitMs: 50,
   }, null, 1));
-  assert.ok(busyMs < 0.15 * windowMs,
-    `the main thread stays mostly idle while the worker trains: long tasks took ${busyMs} ms of a ${windowMs} ms window; saw ${JSON.stringify(longTasks)} (idle page: ${JSON.stringify(idleLongTasks)}); slow frames: ${slowFrames.join(' | ')}`);
+  assert.ok(windowMs > 3000, `the observed training window is long enough to mean something (${windowMs} ms)`);
+  assert.deepEqual(longTasks, [],
+    `no main-thread task over 50 ms while the worker trains (${windowMs} ms observed; idle page before: ${JSON.stringify(idleLongTasks)}); slow frames: ${slowFrames.join(' | ')}`);
 }

@@ -2,6 +2,7 @@ import { Injectable, OnDestroy, computed, inject, signal } from '@angular/core';
 import { proxy } from 'comlink';
 import type { RunDto } from '../../../shared/api/runs';
 import { ApiError, messageOf } from '../core/api-error';
+import { AuthStore } from '../core/auth-store';
 import { TRAINER_FACTORY, fromBoundaryError, type TrainerHandle } from '../workers/trainer-client';
 import type { TrainingOutcome, TrainingProgress } from '../workers/trainer-api';
 import { LiveRun, type CurvePoint } from './live-run';
@@ -10,6 +11,11 @@ import { RunsApi } from './runs-api';
 
 const FLUSH_EVERY_MS = 5000;
 const FLUSH_AT_POINTS = 500;
+
+/** A sentence for an error from the server (through HttpClient) or from the worker (through comlink). */
+function problemOf(error: unknown): string {
+  return error instanceof ApiError ? messageOf(error) : fromBoundaryError(error).message;
+}
 
 interface Slot {
   live: LiveRun; handle: TrainerHandle | null; buffer: CurvePoint[]; lastFlush: number; saving: boolean; nextSave: number;
@@ -24,6 +30,7 @@ interface Slot {
 @Injectable({ providedIn: 'root' })
 export class RunScheduler implements OnDestroy {
   private readonly api = inject(RunsApi);
+  private readonly auth = inject(AuthStore);
   private readonly factory = inject(TRAINER_FACTORY);
   private readonly slots = new Map<string, Slot>();
   private readonly version = signal(0);
@@ -66,6 +73,28 @@ export class RunScheduler implements OnDestroy {
     await slot.handle.api.resume();
     slot.live.state.set('training');
     await this.flush(slot, { status: 'training' });
+  }
+
+  /**
+   * Saves a checkpoint of a training or paused run now (reason "manual"). Resolves with the saved step; throws
+   * with a sentence when the run is not training in this tab, a save is already under way, or the save failed.
+   */
+  async saveNow(runId: string): Promise<number> {
+    const slot = this.slots.get(runId);
+    const state = slot?.live.state();
+    if (!slot?.handle || (state !== 'training' && state !== 'paused')) {
+      throw new Error('Only a run that is training or paused in this tab can be saved now.');
+    }
+    if (slot.saving) throw new Error('A checkpoint of this run is being saved already; wait a moment.');
+    slot.saving = true;
+    try {
+      await this.saveCheckpoint(slot, 'manual');
+      return slot.live.lastSavedStep() ?? 0;
+    } catch (error) {
+      throw new Error(problemOf(error));
+    } finally {
+      slot.saving = false;
+    }
   }
 
   async stop(runId: string): Promise<void> {
@@ -120,7 +149,7 @@ export class RunScheduler implements OnDestroy {
       const outcome = await slot.handle.api.start(proxy((p: TrainingProgress) => this.onProgress(slot, p)));
       await this.finish(slot, outcome);
     } catch (error) {
-      const problem = error instanceof ApiError ? messageOf(error) : fromBoundaryError(error).message;
+      const problem = problemOf(error);
       live.problem.set(problem);
       live.state.set('failed');
       await this.api.update(benchId, run.id, { status: 'failed', statusReason: problem.slice(0, 500) }).catch(() => undefined);
@@ -151,18 +180,19 @@ export class RunScheduler implements OnDestroy {
     try {
       await this.saveCheckpoint(slot, 'auto');
     } catch (error) {
-      slot.live.problem.set(`Autosave failed: ${messageOf(error)}`);
+      slot.live.problem.set(`Autosave failed: ${problemOf(error)}`);
     } finally {
       slot.saving = false;
     }
   }
 
-  private async saveCheckpoint(slot: Slot, reason: 'auto' | 'stop'): Promise<void> {
+  /** The worker encodes and sends the checkpoint itself: the page only gets the short answer. */
+  private async saveCheckpoint(slot: Slot, reason: 'auto' | 'stop' | 'manual'): Promise<void> {
     if (!slot.handle) return;
-    const bytes = await slot.handle.api.checkpoint();
     const p = slot.live.progress();
     const bound = p?.evaluation?.validationBitsPerChar ?? p?.trainBitsPerChar;
-    const ck = await this.api.uploadCheckpoint(slot.live.benchId, slot.live.id, bytes, reason, bound);
+    const url = this.api.checkpointUploadUrl(slot.live.benchId, slot.live.id, reason, bound);
+    const ck = await slot.handle.api.uploadCheckpoint({ url, token: this.auth.token() });
     slot.live.lastSavedStep.set(ck.step);
     slot.live.checkpointSaved.next(ck.step);
   }
@@ -199,7 +229,7 @@ export class RunScheduler implements OnDestroy {
     try {
       await this.saveCheckpoint(slot, 'stop');
     } catch (error) {
-      live.problem.set(`The final checkpoint could not be saved: ${messageOf(error)}`);
+      live.problem.set(`The final checkpoint could not be saved: ${problemOf(error)}`);
     }
     await this.flush(slot);
     if (outcome.kind === 'failed') {

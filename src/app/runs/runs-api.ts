@@ -63,6 +63,16 @@ export class RunsApi {
     return firstValueFrom(this.http.post<CheckpointDto>(`${this.base(benchId)}/${enc(runId)}/checkpoints`, bytesBody(bytes), { params, headers }));
   }
 
+  /**
+   * The absolute address a worker POSTs checkpoint bytes to (same route as `uploadCheckpoint`); the worker sends
+   * the bytes itself so the page's main thread does no work for a save.
+   */
+  checkpointUploadUrl(benchId: string, runId: string, reason: Exclude<CheckpointReason, 'import'>, boundBitsPerChar?: number): string {
+    const params = new URLSearchParams({ reason });
+    if (boundBitsPerChar !== undefined && Number.isFinite(boundBitsPerChar)) params.set('boundBitsPerChar', String(boundBitsPerChar));
+    return new URL(`${this.base(benchId)}/${enc(runId)}/checkpoints?${params}`, globalThis.location.href).href;
+  }
+
   downloadCheckpoint(benchId: string, runId: string, checkpointId: string): Promise<Uint8Array> {
     return firstValueFrom(this.http.get(`${this.base(benchId)}/${enc(runId)}/checkpoints/${enc(checkpointId)}/file`, { responseType: 'arraybuffer' }))
       .then((b) => new Uint8Array(b));

@@ -105,6 +105,19 @@ export interface TrainerErrorShape {
   message: string;
 }
 
+/** Where and as whom the worker sends a checkpoint: the absolute upload URL (with its query) and the bearer token. */
+export interface CheckpointUploadTarget {
+  url: string;
+  token: string | null;
+}
+
+/** The part of the server's answer the page uses (the full answer is a `CheckpointDto`). */
+export interface CheckpointUploadAnswer {
+  id: string;
+  step: number;
+  [field: string]: unknown;
+}
+
 /** Called from the worker through a comlink proxy (so it returns a promise on the worker's side). */
 export type ProgressCallback = (progress: TrainingProgress) => void | Promise<void>;
 
@@ -119,6 +132,11 @@ export interface TrainerApi {
   stop(): Promise<void>;
   /** The current weights and optimiser state as checkpoint bytes (the last good step after a failure). */
   checkpoint(): Promise<Uint8Array>;
+  /**
+   * Encodes the current checkpoint and POSTs it to the server from the worker, so the page's main thread does
+   * no work for it; resolves with the server's answer (the stored checkpoint's description).
+   */
+  uploadCheckpoint(target: CheckpointUploadTarget): Promise<CheckpointUploadAnswer>;
   /** `n` fresh samples from the current model. */
   samples(n: number): Promise<string[]>;
   /** Frees the model's tensors. */

@@ -9,7 +9,7 @@ import { decodeCheckpoint, encodeCheckpoint } from '../../../shared/model/checkp
 import { TrainerError, TrainerErrorCode, toTrainerError } from '../../../shared/model/trainer-errors';
 import { createEngine, type RunEngine } from './run-engines';
 import type {
-  EngineInfo, ProgressCallback, TrainerApi, TrainerSettings, TrainingOutcome, TrainingProgress, TrainingSet,
+  CheckpointUploadAnswer, CheckpointUploadTarget, EngineInfo, ProgressCallback, TrainerApi, TrainerSettings, TrainingOutcome, TrainingProgress, TrainingSet,
 } from './trainer-api';
 
 /** What the worker entry knows about the compute it set up (backend name, SIMD, threads). */
@@ -161,6 +161,35 @@ export class TrainerSession implements TrainerApi {
       if (!this.engine) throw new TrainerError(TrainerErrorCode.WrongState, 'Call init before asking for a checkpoint.');
       const bytes = encodeCheckpoint(this.engine.checkpoint());
       return transfer(bytes, [bytes.buffer as ArrayBuffer]);
+    } catch (e) {
+      throw boundaryError(e);
+    }
+  }
+
+  async uploadCheckpoint(target: CheckpointUploadTarget): Promise<CheckpointUploadAnswer> {
+    try {
+      if (!this.engine) throw new TrainerError(TrainerErrorCode.WrongState, 'Call init before saving a checkpoint.');
+      const bytes = encodeCheckpoint(this.engine.checkpoint());
+      const headers: Record<string, string> = { 'Content-Type': 'application/octet-stream' };
+      if (target.token) headers['Authorization'] = `Bearer ${target.token}`;
+      let response: Response;
+      try {
+        response = await fetch(target.url, { method: 'POST', headers, body: bytes as BodyInit });
+      } catch (e) {
+        throw new TrainerError(TrainerErrorCode.UploadFailed,
+          `The checkpoint could not reach the server (${(e as Error).message || 'network error'}); check the connection, then save again.`);
+      }
+      const answer = await response.json().catch(() => null) as (Partial<CheckpointUploadAnswer> & { error?: { message?: unknown } }) | null;
+      if (!response.ok) {
+        const message = answer?.error?.message;
+        const said = typeof message === 'string' ? message : null;
+        throw new TrainerError(TrainerErrorCode.UploadFailed,
+          said ? `The server did not store the checkpoint: ${said}` : `The server did not store the checkpoint (HTTP ${response.status}).`);
+      }
+      if (!answer || typeof (answer as CheckpointUploadAnswer).id !== 'string') {
+        throw new TrainerError(TrainerErrorCode.UploadFailed, 'The server stored the checkpoint but its answer could not be read; reload the checkpoint list.');
+      }
+      return answer as CheckpointUploadAnswer;
     } catch (e) {
       throw boundaryError(e);
     }

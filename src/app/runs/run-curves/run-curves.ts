@@ -120,8 +120,9 @@ export class RunCurves {
   }
 
   private options(width: number): uPlot.Options {
+    // uPlot merges options over its defaults, so a key set to undefined would erase a default: add `side` only when given.
     const axis = (label: string, scale: string, side?: 1): uPlot.Axis => ({
-      label, scale, side, font: AXIS_FONT, labelFont: AXIS_FONT, stroke: '#4a4a44',
+      label, scale, ...(side ? { side } : {}), font: AXIS_FONT, labelFont: AXIS_FONT, stroke: '#4a4a44',
       grid: { show: side !== 1, stroke: '#e6dfd0', width: 1 }, ticks: { stroke: '#d6cfbf', width: 1 },
     });
     return {

@@ -8,6 +8,7 @@ import type { Subscription } from 'rxjs';
 import { KNOWN_METRIC_SERIES, type CheckpointDto, type MetricSeriesPage, type RunDto } from '../../../../shared/api/runs';
 import { messageOf } from '../../core/api-error';
 import { CurrentBench } from '../../benches/current-bench';
+import { Notice } from '../../core/notice';
 import { RunCheckpoints } from '../run-checkpoints/run-checkpoints';
 import { RunCurves } from '../run-curves/run-curves';
 import { FAMILY_LABELS, STATUS_LABELS, formatDuration } from '../run-labels';
@@ -28,6 +29,7 @@ export class RunView {
   protected readonly bench = inject(CurrentBench);
   protected readonly scheduler = inject(RunScheduler);
   private readonly api = inject(RunsApi);
+  private readonly notice = inject(Notice);
   private readonly curves = viewChild(RunCurves);
 
   protected readonly run = signal<RunDto | null>(null);
@@ -35,6 +37,7 @@ export class RunView {
   protected readonly history = signal<MetricSeriesPage['series']>({});
   protected readonly problem = signal<string | null>(null);
   protected readonly busy = signal(false);
+  protected readonly saving = signal(false);
   protected readonly familyLabels = FAMILY_LABELS;
   protected readonly statusLabels = STATUS_LABELS;
   protected readonly duration = formatDuration;
@@ -121,6 +124,19 @@ export class RunView {
 
   protected pause(): void { void this.scheduler.pause(this.runId()).catch((e: unknown) => this.problem.set(messageOf(e))); }
   protected resume(): void { void this.scheduler.resume(this.runId()).catch((e: unknown) => this.problem.set(messageOf(e))); }
+  /** A checkpoint now, besides the autosaves (listed as "saved by hand"). */
+  protected async saveNow(): Promise<void> {
+    this.saving.set(true);
+    try {
+      const step = await this.scheduler.saveNow(this.runId());
+      this.notice.done(`Checkpoint of step ${step.toLocaleString('en')} saved.`);
+    } catch (error) {
+      this.notice.problem(error instanceof Error ? error.message : String(error));
+    } finally {
+      this.saving.set(false);
+    }
+  }
+
   protected stop(): void { void this.scheduler.stop(this.runId()).catch((e: unknown) => this.problem.set(messageOf(e))); }
 
   /** Trains the run in this tab: from a checkpoint, or from the latest one, or fresh when there is none. */

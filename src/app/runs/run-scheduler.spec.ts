@@ -1,0 +1,92 @@
+import { provideZonelessChangeDetection } from '@angular/core';
+import { TestBed } from '@angular/core/testing';
+import type { RunDto } from '../../../shared/api/runs';
+import { AuthStore } from '../core/auth-store';
+import type { TrainerHandle } from '../workers/trainer-client';
+import { TRAINER_FACTORY } from '../workers/trainer-client';
+import type { CheckpointUploadTarget, TrainingOutcome } from '../workers/trainer-api';
+import { RunScheduler } from './run-scheduler';
+import { RunsApi } from './runs-api';
+
+const RUN = {
+  id: 'run-1', benchId: 'b1', corpus: { id: 'c1', name: 'Syllables' }, createdBy: null, name: 'Little one', family: 'ngram',
+  settings: { model: { order: 3 }, training: { checkpointEvery: 0 } }, alphabet: ['a', 'b'], status: 'created', statusReason: null,
+  summary: {}, stepsDone: 0, archived: false, checkpointCount: 0, canControl: true, createdAt: '2026-12-01T00:00:00Z', updatedAt: '2026-12-01T00:00:00Z',
+} as unknown as RunDto;
+
+/** A fake worker: training runs until `stop`; checkpoints are "uploaded" by recording the target. */
+function fakeWorker() {
+  let end: (o: TrainingOutcome) => void = () => {};
+  const uploads: CheckpointUploadTarget[] = [];
+  let failNext: string | null = null;
+  const handle = {
+    api: {
+      init: vi.fn(async () => ({ backend: 'wasm', simd: true, threads: 1, parameterCount: 10, step: 0 })),
+      start: vi.fn(() => new Promise<TrainingOutcome>((resolve) => { end = resolve; })),
+      pause: vi.fn(async () => undefined),
+      resume: vi.fn(async () => undefined),
+      stop: vi.fn(async () => end({ kind: 'stopped', step: 7 })),
+      uploadCheckpoint: vi.fn(async (target: CheckpointUploadTarget) => {
+        if (failNext) { const e = new Error(failNext); e.name = 'UPLOAD_FAILED'; failNext = null; throw e; }
+        uploads.push(target);
+        return { id: `ck-${uploads.length}`, step: 7 };
+      }),
+    },
+    close: vi.fn(),
+  } as unknown as TrainerHandle;
+  return { handle, uploads, failWith: (m: string) => { failNext = m; } };
+}
+
+function setUp() {
+  const worker = fakeWorker();
+  const api = {
+    update: vi.fn(async () => RUN),
+    trainingSet: vi.fn(async () => ({ alphabet: ['a', 'b'], words: ['ab', 'ba'], counts: [2, 1], splits: ['train', 'validation'] })),
+    truncateMetrics: vi.fn(async () => undefined),
+    addMetrics: vi.fn(async () => undefined),
+    checkpointUploadUrl: (benchId: string, runId: string, reason: string) => `http://example.test/api/benches/${benchId}/runs/${runId}/checkpoints?reason=${reason}`,
+  };
+  TestBed.configureTestingModule({
+    providers: [
+      provideZonelessChangeDetection(),
+      { provide: RunsApi, useValue: api },
+      { provide: AuthStore, useValue: { token: () => 'token-1' } },
+      { provide: TRAINER_FACTORY, useValue: () => worker.handle },
+    ],
+  });
+  return { scheduler: TestBed.inject(RunScheduler), worker };
+}
+
+const until = async (check: () => boolean) => {
+  for (let i = 0; i < 100 && !check(); i++) await new Promise((r) => setTimeout(r, 5));
+  expect(check()).toBe(true);
+};
+
+describe('RunScheduler checkpoints', () => {
+  it('saves a checkpoint now through the worker, with reason "manual" and the signed-in token', async () => {
+    const { scheduler, worker } = setUp();
+    const live = await scheduler.enqueue('b1', RUN);
+    await until(() => live.state() === 'training');
+    await expect(scheduler.saveNow('run-1')).resolves.toBe(7);
+    expect(worker.uploads).toEqual([{ url: 'http://example.test/api/benches/b1/runs/run-1/checkpoints?reason=manual', token: 'token-1' }]);
+    expect(live.lastSavedStep()).toBe(7);
+    await scheduler.stop('run-1');
+    await until(() => live.state() === 'stopped');
+    // Stopping saves once more, with reason "stop".
+    expect(worker.uploads.at(-1)?.url).toMatch(/reason=stop$/);
+  });
+
+  it('passes the worker’s sentence on when a save fails', async () => {
+    const { scheduler, worker } = setUp();
+    const live = await scheduler.enqueue('b1', RUN);
+    await until(() => live.state() === 'training');
+    worker.failWith('The server did not store the checkpoint: The run is archived.');
+    await expect(scheduler.saveNow('run-1')).rejects.toThrow('The server did not store the checkpoint: The run is archived.');
+    await scheduler.stop('run-1');
+  });
+
+  it('refuses to save a run that is not training in this tab', async () => {
+    const { scheduler } = setUp();
+    await expect(scheduler.saveNow('run-404')).rejects.toThrow(/training or paused in this tab/);
+  });
+});
