@@ -1,4 +1,4 @@
-import { HttpClient, HttpHeaders, HttpParams } from '@angular/common/http';
+import { HttpClient, HttpParams } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
 import type { CorpusSummary } from '../../../shared/api/corpora';
@@ -55,17 +55,9 @@ export class RunsApi {
     return firstValueFrom(this.http.get<CheckpointDto[]>(`${this.base(benchId)}/${enc(runId)}/checkpoints`));
   }
 
-  uploadCheckpoint(benchId: string, runId: string, bytes: Uint8Array, reason: Exclude<CheckpointReason, 'import'>,
-                   boundBitsPerChar?: number): Promise<CheckpointDto> {
-    let params = new HttpParams().set('reason', reason);
-    if (boundBitsPerChar !== undefined && Number.isFinite(boundBitsPerChar)) params = params.set('boundBitsPerChar', boundBitsPerChar);
-    const headers = new HttpHeaders({ 'Content-Type': 'application/octet-stream' });
-    return firstValueFrom(this.http.post<CheckpointDto>(`${this.base(benchId)}/${enc(runId)}/checkpoints`, bytesBody(bytes), { params, headers }));
-  }
-
   /**
-   * The absolute address a worker POSTs checkpoint bytes to (same route as `uploadCheckpoint`); the worker sends
-   * the bytes itself so the page's main thread does no work for a save.
+   * The absolute address a worker POSTs checkpoint bytes to (`POST …/runs/:runId/checkpoints`); the worker
+   * sends the bytes itself so the page's main thread does no work for a save.
    */
   checkpointUploadUrl(benchId: string, runId: string, reason: Exclude<CheckpointReason, 'import'>, boundBitsPerChar?: number): string {
     const params = new URLSearchParams({ reason });
