@@ -1,7 +1,8 @@
 /**
  * Training in the browser, end to end in Chromium: a run on a demo corpus is designed in the new-run form,
  * trains in a web worker for a few hundred steps while the curves move, is saved by hand, paused, resumed and
- * stopped; its checkpoints are listed; after a page reload the run continues from the last one. A
+ * stopped; a second tab of the same browser is kept from training it at the same time; its checkpoints are
+ * listed; after a page reload the run continues from the last one. A
  * PerformanceObserver records the main thread's long tasks (over 50 ms) from step 20 until the Stop click —
  * while the worker trains and the person saves, pauses and resumes — and the test asserts there are none. The
  * record (and the slow frames, with the scripts in them) goes to tests/artifacts/training-long-tasks.json.
@@ -132,6 +133,15 @@ async function trainingStory(person: Awaited<ReturnType<TestBrowser['newPerson']
   const windowMs = Date.now() - windowStart;
   const longTasks = await page.evaluate(() => (window as unknown as { __longTasks: number[] }).__longTasks);
   const slowFrames = await page.evaluate(() => (window as unknown as { __frames: string[] }).__frames.slice(0, 12));
+
+  // A second tab of the same browser cannot train the run while this one does (the run's Web Lock).
+  const second = await page.context().newPage();
+  await second.goto(runUrl);
+  await second.getByTestId('train-here').click();
+  await second.getByTestId('run-state').filter({ hasText: 'in another tab' }).waitFor();
+  await second.getByTestId('run-problem').filter({ hasText: /training in another tab/ }).waitFor();
+  await screenshot(second, 'training-03b-second-tab');
+  await second.close();
 
   // Stop: a checkpoint is saved and listed with its step.
   await page.getByRole('button', { name: 'Stop' }).click();

@@ -22,7 +22,7 @@ export class GridQueue {
       .filter((r): r is NonNullable<typeof r> => !!r && !r.archived && UNFINISHED.includes(r.status))
       .filter((r) => {
         const live = this.scheduler.live(r.id);
-        return !live || !(live.isActive || live.state() === 'waiting');
+        return !live || !(live.isActive || live.state() === 'waiting' || live.state() === 'elsewhere');
       })
       .map((r) => r.id);
   }

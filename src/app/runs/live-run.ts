@@ -7,7 +7,15 @@ import { Subject } from 'rxjs';
 import type { RunDto } from '../../../shared/api/runs';
 import type { EngineInfo, TrainingProgress } from '../workers/trainer-api';
 
-export type LiveState = 'waiting' | 'starting' | 'training' | 'paused' | 'stopping' | 'finished' | 'stopped' | 'failed';
+export type LiveState = 'waiting' | 'starting' | 'training' | 'paused' | 'stopping' | 'finished' | 'stopped' | 'failed'
+  /** Another tab of this browser trains the run (it holds the run's lock); this tab leaves it alone. */
+  | 'elsewhere';
+
+/** What people read for each state. */
+export const LIVE_STATE_LABELS: Record<LiveState, string> = {
+  waiting: 'waiting', starting: 'starting', training: 'training', paused: 'paused', stopping: 'stopping',
+  finished: 'finished', stopped: 'stopped', failed: 'failed', elsewhere: 'in another tab',
+};
 
 /** Metric series names written to the server (see KNOWN_METRIC_SERIES in shared/api/runs.ts). */
 export const SERIES = {

@@ -90,3 +90,44 @@ describe('RunScheduler checkpoints', () => {
     await expect(scheduler.saveNow('run-404')).rejects.toThrow(/training or paused in this tab/);
   });
 });
+
+/** A stand-in for the browser's LockManager: names held by "another tab" plus the ones this tab takes. */
+function fakeLocks(heldByOtherTab: string[]) {
+  const held = new Set(heldByOtherTab);
+  return {
+    held,
+    request: async (name: string, _opts: unknown, body: (lock: { name: string } | null) => Promise<void>) => {
+      if (held.has(name)) return body(null);
+      held.add(name);
+      try { return await body({ name }); } finally { held.delete(name); }
+    },
+    query: async () => ({ held: [...held].map((name) => ({ name })) }),
+  };
+}
+
+describe('RunScheduler across tabs (Web Locks)', () => {
+  afterEach(() => { vi.unstubAllGlobals(); });
+
+  it('leaves a run alone when another tab of the browser trains it', async () => {
+    vi.stubGlobal('navigator', { ...navigator, locks: fakeLocks(['noisewright-run:run-1']) });
+    const { scheduler, worker } = setUp();
+    const api = TestBed.inject(RunsApi) as unknown as { update: ReturnType<typeof vi.fn> };
+    const live = await scheduler.enqueue('b1', RUN);
+    expect(live.state()).toBe('elsewhere');
+    expect(live.problem()).toMatch(/another tab/);
+    expect(worker.handle.api.init).not.toHaveBeenCalled();
+    expect(api.update).not.toHaveBeenCalled(); // the server status stays the other tab's
+  });
+
+  it('holds the run’s lock while it trains and lets go when it stops', async () => {
+    const locks = fakeLocks([]);
+    vi.stubGlobal('navigator', { ...navigator, locks });
+    const { scheduler } = setUp();
+    const live = await scheduler.enqueue('b1', RUN);
+    await until(() => live.state() === 'training');
+    expect(locks.held.has('noisewright-run:run-1')).toBe(true);
+    await scheduler.stop('run-1');
+    await until(() => live.state() === 'stopped');
+    await until(() => !locks.held.has('noisewright-run:run-1'));
+  });
+});

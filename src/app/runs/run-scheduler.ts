@@ -17,6 +17,8 @@ function problemOf(error: unknown): string {
   return error instanceof ApiError ? messageOf(error) : fromBoundaryError(error).message;
 }
 
+const lockName = (runId: string) => `noisewright-run:${runId}`;
+
 interface Slot {
   live: LiveRun; handle: TrainerHandle | null; buffer: CurvePoint[]; lastFlush: number; saving: boolean; nextSave: number;
   best: { bits: number; step: number } | null;
@@ -46,7 +48,10 @@ export class RunScheduler implements OnDestroy {
     return this.slots.get(runId)?.live ?? null;
   }
 
-  /** Queues a run (fresh, or from a checkpoint); it starts as soon as a worker slot is free. */
+  /**
+   * Queues a run (fresh, or from a checkpoint); it starts as soon as a worker slot is free. A run that another
+   * tab of this browser trains (it holds the run's Web Lock) is not queued: its live state says "elsewhere".
+   */
   async enqueue(benchId: string, run: RunDto, fromCheckpointId: string | null = null): Promise<LiveRun> {
     const existing = this.slots.get(run.id);
     if (existing && (existing.live.isActive || existing.live.state() === 'waiting')) return existing.live;
@@ -54,6 +59,10 @@ export class RunScheduler implements OnDestroy {
     this.slots.delete(run.id);
     this.slots.set(run.id, { live, handle: null, buffer: [], lastFlush: performance.now(), saving: false, nextSave: 0, best: null });
     this.version.update((v) => v + 1);
+    if (await this.heldElsewhere(run.id)) {
+      this.markElsewhere(live);
+      return live;
+    }
     await this.api.update(benchId, run.id, { status: 'queued', statusReason: null }).catch(() => undefined);
     this.pump();
     return live;
@@ -123,7 +132,37 @@ export class RunScheduler implements OnDestroy {
     this.pump();
   }
 
+  /** Trains the run while holding its Web Lock, so two tabs of one browser never train the same run at once. */
   private async launch(slot: Slot): Promise<void> {
+    slot.live.state.set('starting'); // at once: `pump` counts starting runs
+    const locks = globalThis.navigator?.locks;
+    if (!locks) return this.train(slot);
+    let held = false;
+    await locks.request(lockName(slot.live.id), { ifAvailable: true }, async (lock) => {
+      if (!lock) return;
+      held = true;
+      await this.train(slot);
+    });
+    if (!held) {
+      this.markElsewhere(slot.live);
+      this.close(slot);
+    }
+  }
+
+  /** Whether another tab holds the run's lock (checked before the run is marked queued on the server). */
+  private async heldElsewhere(runId: string): Promise<boolean> {
+    const locks = globalThis.navigator?.locks;
+    if (!locks) return false;
+    const state = await locks.query().catch(() => null);
+    return !!state?.held?.some((l) => l.name === lockName(runId));
+  }
+
+  private markElsewhere(live: LiveRun): void {
+    live.state.set('elsewhere');
+    live.problem.set('This run is training in another tab of this browser. Follow it there, or stop it there before training it here.');
+  }
+
+  private async train(slot: Slot): Promise<void> {
     const { live } = slot;
     const { benchId, run } = live;
     live.state.set('starting');

@@ -15,6 +15,7 @@ import { messageOf } from '../../core/api-error';
 import { CurrentBench } from '../../benches/current-bench';
 import { CheckpointImport } from '../checkpoint-import/checkpoint-import';
 import { FAMILY_SHORT, STATUS_LABELS } from '../run-labels';
+import { LIVE_STATE_LABELS } from '../live-run';
 import { RunScheduler } from '../run-scheduler';
 import { RunsApi } from '../runs-api';
 
@@ -41,6 +42,7 @@ export class RunList {
   protected readonly statuses = RUN_STATUSES;
   protected readonly familyShort = FAMILY_SHORT;
   protected readonly statusLabels = STATUS_LABELS;
+  protected readonly liveLabels = LIVE_STATE_LABELS;
   protected readonly columns = ['name', 'family', 'corpus', 'status', 'stepsDone', 'bestBound', 'createdAt'];
 
   protected readonly corpora = signal<CorpusSummary[]>([]);

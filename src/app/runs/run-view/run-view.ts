@@ -12,6 +12,7 @@ import { Notice } from '../../core/notice';
 import { RunCheckpoints } from '../run-checkpoints/run-checkpoints';
 import { RunCurves } from '../run-curves/run-curves';
 import { FAMILY_LABELS, STATUS_LABELS, formatDuration } from '../run-labels';
+import { LIVE_STATE_LABELS } from '../live-run';
 import { RunScheduler } from '../run-scheduler';
 import { RunsApi } from '../runs-api';
 
@@ -50,7 +51,7 @@ export class RunView {
   });
   protected readonly stateLabel = computed(() => {
     const l = this.live();
-    if (l) return l.state();
+    if (l) return LIVE_STATE_LABELS[l.state()];
     const r = this.run();
     return r ? STATUS_LABELS[r.status].toLowerCase() : '';
   });
