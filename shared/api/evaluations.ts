@@ -23,7 +23,9 @@ const word = z.string().max(400);
 /**
  * What the user chose for one evaluation. `K`, `repeats`: the tight held-out estimate; `S`: prior trajectories
  * of the sequence cross entropy (`crossEntropyK` its IWAE check, 0 = skip); `M`: noise draws; `sampleCount`:
- * sampled words; `baselineRunId`: a GRU run whose checkpoint gave the baseline figures (optional).
+ * sampled words; `baselineRunId`: a GRU run whose checkpoint gave the baseline figures (optional);
+ * `heldOutSplit`: the split whose words are scored (`npm run evaluate --held-out`); `ngramOrder`: the order of the
+ * Kneser–Ney baseline fitted on the training words (`--order`, 1–6 as shared/model/ngram-kn.ts allows).
  * Two evaluations with equal settings (after defaults) are the same evaluation (409 on the second).
  */
 export const evaluationSettingsSchema = z
@@ -42,6 +44,8 @@ export const evaluationSettingsSchema = z
       .max(20, 'Give at most 20 prefixes.').default([]),
     seed: whole('a seed', 0, 2 ** 31 - 1).default(1),
     baselineRunId: z.string().uuid('Choose a baseline run of this bench.').nullable().default(null),
+    heldOutSplit: z.enum(['validation', 'test'], { error: 'Choose the held-out split: validation or test.' }).default('test'),
+    ngramOrder: whole('the n-gram order', 1, 6).default(3),
   })
   .strict();
 export type EvaluationSettingsInput = z.input<typeof evaluationSettingsSchema>;
@@ -56,9 +60,18 @@ export function toReportSettings(s: StoredEvaluationSettings): EvaluationSetting
   };
 }
 
+/**
+ * The settings added after the first evaluations were stored, with their defaults: a key leaves them out while
+ * they hold the default, so an evaluation stored before they existed (held-out split test, order 3) still has
+ * the key of the same settings sent today.
+ */
+const LATER_SETTING_DEFAULTS: Record<string, unknown> = { heldOutSplit: 'test', ngramOrder: 3 };
+
 /** A canonical key of the settings (sorted keys), used to find an identical evaluation. */
 export function evaluationSettingsKey(s: StoredEvaluationSettings): string {
-  const sorted = Object.keys(s).sort().map((k) => [k, (s as Record<string, unknown>)[k]]);
+  const r = s as Record<string, unknown>;
+  const keep = (k: string) => !(k in LATER_SETTING_DEFAULTS) || (r[k] !== undefined && r[k] !== LATER_SETTING_DEFAULTS[k]);
+  const sorted = Object.keys(s).filter(keep).sort().map((k) => [k, r[k]]);
   return JSON.stringify(sorted);
 }
 

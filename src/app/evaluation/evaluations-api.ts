@@ -5,6 +5,14 @@ import type { CreateEvaluationRequest, EvaluationDto, EvaluationSummaryDto } fro
 
 const enc = encodeURIComponent;
 
+/**
+ * Evaluations stored before the held-out split and the n-gram order were settings lack them; they were computed
+ * with the defaults (test, order 3), which are filled in here so every page can show them.
+ */
+function withDefaults<T extends EvaluationSummaryDto>(e: T): T {
+  return { ...e, settings: { ...e.settings, heldOutSplit: e.settings.heldOutSplit ?? 'test', ngramOrder: e.settings.ngramOrder ?? 3 } };
+}
+
 /** Stored evaluations of a checkpoint (DEVELOPERS.md, "REST API"). Failures arrive as ApiError. */
 @Injectable({ providedIn: 'root' })
 export class EvaluationsApi {
@@ -17,14 +25,14 @@ export class EvaluationsApi {
   /** The evaluations stored for a checkpoint, newest first (without their figures). */
   list(benchId: string, runId: string, checkpointId: string): Promise<EvaluationSummaryDto[]> {
     return firstValueFrom(this.http.get<EvaluationSummaryDto[] | { items: EvaluationSummaryDto[] }>(this.base(benchId, runId, checkpointId)))
-      .then((r) => (Array.isArray(r) ? r : r.items));
+      .then((r) => (Array.isArray(r) ? r : r.items).map(withDefaults));
   }
 
   get(benchId: string, evaluationId: string): Promise<EvaluationDto> {
-    return firstValueFrom(this.http.get<EvaluationDto>(`/api/benches/${enc(benchId)}/evaluations/${enc(evaluationId)}`));
+    return firstValueFrom(this.http.get<EvaluationDto>(`/api/benches/${enc(benchId)}/evaluations/${enc(evaluationId)}`)).then(withDefaults);
   }
 
   create(benchId: string, runId: string, checkpointId: string, body: CreateEvaluationRequest): Promise<EvaluationDto> {
-    return firstValueFrom(this.http.post<EvaluationDto>(this.base(benchId, runId, checkpointId), body));
+    return firstValueFrom(this.http.post<EvaluationDto>(this.base(benchId, runId, checkpointId), body)).then(withDefaults);
   }
 }

@@ -24,8 +24,9 @@ export interface EvaluationJobInput {
   corpus: CorpusTrainingSet;
   /** The run's own split when it has one (else the corpus's stored split applies). */
   split: { seed: number; shares: SplitShares } | null;
+  /** The split whose words are scored (`npm run evaluate --held-out`, default test; the page's settings form). */
   heldOutSplit: 'validation' | 'test';
-  /** Order of the Kneser–Ney baseline fitted on the training words (`npm run evaluate --order`, default 3). */
+  /** Order of the Kneser–Ney baseline fitted on the training words, 1–6 (`npm run evaluate --order`, default 3). */
   ngramOrder: number;
   settings: EvaluationSettings;
   /** A GRU checkpoint trained on the same corpus: its figures go beside the model's. */
@@ -86,8 +87,19 @@ export function checkEvaluationSettings(s: EvaluationSettings): void {
   whole(s.seed, 'Seed', 0, 2 ** 31 - 1);
 }
 
+/** Checks the held-out split and the baseline order of a job (the range `KneserNeyModel.estimate` accepts). */
+export function checkJobChoices(input: Pick<EvaluationJobInput, 'heldOutSplit' | 'ngramOrder'>): void {
+  if (input.heldOutSplit !== 'validation' && input.heldOutSplit !== 'test') {
+    throw new Error(`Choose the held-out split validation or test (got "${String(input.heldOutSplit)}").`);
+  }
+  if (!Number.isInteger(input.ngramOrder) || input.ngramOrder < 1 || input.ngramOrder > 6) {
+    throw new Error(`The n-gram baseline order must be a whole number from 1 to 6 (got ${input.ngramOrder}).`);
+  }
+}
+
 export function runEvaluationJob(input: EvaluationJobInput, onStage?: EvaluationStageCallback): EvaluationJobResult {
   checkEvaluationSettings(input.settings);
+  checkJobChoices(input);
   const ck = decodeCheckpoint(input.checkpoint);
   const data = evaluationData(input, ck.alphabet);
   const ngram = KneserNeyModel.estimate(data.train, data.alphabet, { order: input.ngramOrder });

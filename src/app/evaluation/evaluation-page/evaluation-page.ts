@@ -146,7 +146,7 @@ export class EvaluationPage {
     this.reportBusy.set(true);
     try {
       const report = await firstValueFrom(this.http.post<ReportDto>(`/api/benches/${encodeURIComponent(this.benchId())}/reports`, {
-        kind: 'evaluation', title: `${run.name}, step ${e.checkpoint.step}: evaluation (K = ${e.settings.K}, seed ${e.settings.seed})`, sourceIds: [e.id],
+        kind: 'evaluation', title: `${run.name}, step ${e.checkpoint.step}: evaluation (${e.settings.heldOutSplit} split, order ${e.settings.ngramOrder}, K = ${e.settings.K}, seed ${e.settings.seed})`, sourceIds: [e.id],
       }));
       await this.router.navigateByUrl(report.link);
     } catch (error) {

@@ -1,6 +1,7 @@
 /**
  * Runs one evaluation for the page: fetches the checkpoint, the corpus's training set and the baseline's newest
  * checkpoint, computes every figure in the worker (progress via callback), and stores the result on the server.
+ * The held-out split and the n-gram baseline order come from the chosen settings and are stored with them.
  */
 import { evaluationSettingsSchema, toReportSettings, type EvaluationDto, type EvaluationSettingsInput } from '../../../../shared/api/evaluations';
 import type { RunDto } from '../../../../shared/api/runs';
@@ -10,10 +11,6 @@ import type { EvaluationWorker } from '../evaluation-worker';
 import type { EvaluationsApi } from '../evaluations-api';
 
 export interface RunnerDeps { runs: RunsApi; evaluations: EvaluationsApi; worker: EvaluationWorker }
-
-/** The held-out split and n-gram order the page uses: the defaults of `npm run evaluate`. */
-export const PAGE_HELD_OUT = 'test' as const;
-export const PAGE_NGRAM_ORDER = 3;
 
 export async function runAndStore(deps: RunnerDeps, benchId: string, run: RunDto, checkpointId: string, input: EvaluationSettingsInput,
                                   onProgress: (p: EvaluationProgress) => void): Promise<EvaluationDto> {
@@ -26,7 +23,7 @@ export async function runAndStore(deps: RunnerDeps, benchId: string, run: RunDto
     settings.baselineRunId ? newestCheckpoint(deps.runs, benchId, settings.baselineRunId) : Promise.resolve(null),
   ]);
   const results = await deps.worker.evaluate({
-    checkpoint, corpus, split: run.settings.split ?? null, heldOutSplit: PAGE_HELD_OUT, ngramOrder: PAGE_NGRAM_ORDER,
+    checkpoint, corpus, split: run.settings.split ?? null, heldOutSplit: settings.heldOutSplit, ngramOrder: settings.ngramOrder,
     settings: toReportSettings(settings), gruCheckpoint,
   }, onProgress);
   onProgress({ done: 1, total: 1, next: 'saving the figures' });
