@@ -40,8 +40,9 @@ beforeAll(async () => {
   const corpus = await uploadCorpus(t, f.benchId, f.tokens.member);
   run = await createRun(t, f.benchId, f.tokens.member, ssmRunBody(corpus.id, 'Saved from the worker'));
   // Same corpus, a different model: a checkpoint of `run` does not fit it.
-  const body = ssmRunBody(corpus.id, 'Wider state');
-  other = await createRun(t, f.benchId, f.tokens.member, { ...body, settings: { ...body.settings, model: { ...tinySsmModel, stateSize: 3 } } });
+  const wider = ssmRunBody(corpus.id, 'Wider state');
+  (wider.settings as { model: typeof tinySsmModel }).model = { ...tinySsmModel, stateSize: 3 };
+  other = await createRun(t, f.benchId, f.tokens.member, wider);
   const set = (await request(t.app).get(`/api/benches/${f.benchId}/corpora/${corpus.id}/training-set`).set(bearer(f.tokens.member))).body as CorpusTrainingSet;
   const channel = new MessageChannel();
   ports.push(channel.port1, channel.port2);
