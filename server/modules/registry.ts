@@ -7,6 +7,7 @@
  */
 import type { Router } from 'express';
 import type { AppContext } from '../app-context';
+import { accountDeletionRoutes } from './account-deletion/account-deletion.routes';
 import { activityRoutes } from './activity/activity.routes';
 import { adminRoutes } from './admin/admin.routes';
 import { authRoutes } from './auth/auth.routes';
@@ -32,6 +33,7 @@ export interface ServerModule {
 export const serverModules: ServerModule[] = [
   { name: 'meta', routes: [{ path: '/', signedIn: false, router: metaRoutes }] },
   { name: 'auth', routes: [{ path: '/auth', signedIn: false, router: authRoutes }] },
+  { name: 'account-deletion', routes: [{ path: '/auth/account', signedIn: true, router: accountDeletionRoutes }] },
   {
     name: 'benches',
     routes: [{ path: '/benches', signedIn: true, router: benchListRoutes }],

@@ -20,6 +20,8 @@ export const ErrorCode = {
   EmailTaken: 'EMAIL_TAKEN',
   /** 409: the action would leave a bench without an owner. */
   LastOwner: 'LAST_OWNER',
+  /** 409: the action would leave the instance without an admin. */
+  LastAdmin: 'LAST_ADMIN',
   /** 409: the person is already a member of the bench. */
   AlreadyMember: 'ALREADY_MEMBER',
   /** 409: runs still use the corpus (or archived runs do and the request did not confirm it). */

@@ -63,6 +63,16 @@ export const changePasswordSchema = z.object({
 });
 export type ChangePasswordRequest = z.input<typeof changePasswordSchema>;
 
+/** Deleting one's own account: the current password and the account's e-mail typed again as confirmation. */
+export const deleteAccountSchema = z.object({
+  password: text('Enter your password.').min(1, 'Enter your password.'),
+  confirmEmail: text('Type your e-mail address to confirm.')
+    .trim()
+    .toLowerCase()
+    .min(1, 'Type your e-mail address to confirm.'),
+});
+export type DeleteAccountRequest = z.input<typeof deleteAccountSchema>;
+
 export const resetRequestSchema = z.object({ email: emailField });
 export type ResetRequest = z.input<typeof resetRequestSchema>;
 
