@@ -9,13 +9,14 @@ import { Router } from '@angular/router';
 import { ApiError } from '../../core/api-error';
 import { AuthStore } from '../../core/auth-store';
 import { Notice } from '../../core/notice';
+import { DeleteAccount } from '../delete-account/delete-account';
 import { MIN_PASSWORD_LENGTH, controlMessage, passwordsMatch, formProblem } from '../../ui/form-messages';
 
-/** `/account`: who I am, change my password, sign out. */
+/** `/account`: who I am, change my password, sign out, delete my account. */
 @Component({
   selector: 'nw-account-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [ReactiveFormsModule, DatePipe, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule],
+  imports: [ReactiveFormsModule, DatePipe, DeleteAccount, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule],
   templateUrl: './account-page.html',
   styles: `.nw-facts { display: grid; grid-template-columns: max-content 1fr; gap: 6px 24px; margin: 0; }
     .nw-facts dt { color: var(--mat-sys-on-surface-variant); } .nw-facts dd { margin: 0; } mat-form-field { width: 100%; }`,
