@@ -59,8 +59,26 @@ export class AuthStore {
     return answer.user;
   }
 
+  private readonly signOutHooks = new Set<() => Promise<void>>();
+
+  /**
+   * Work to finish while the session is still valid, run by `signOut` before the token is dropped (the run
+   * scheduler stops this tab's training runs and saves their checkpoints). Returns a function that removes it.
+   */
+  beforeSignOut(hook: () => Promise<void>): () => void {
+    this.signOutHooks.add(hook);
+    return () => this.signOutHooks.delete(hook);
+  }
+
   /** Tells the server to drop every token of the user, then forgets the local session whatever happens. */
   async signOut(): Promise<void> {
+    for (const hook of this.signOutHooks) {
+      try {
+        await hook();
+      } catch {
+        // A hook that fails must not keep the person signed in.
+      }
+    }
     try {
       if (this.tokenState()) await firstValueFrom(this.http.post<void>('/api/auth/signout', {}));
     } catch {

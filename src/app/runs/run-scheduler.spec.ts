@@ -1,4 +1,4 @@
-import { provideZonelessChangeDetection } from '@angular/core';
+import { provideZonelessChangeDetection, signal } from '@angular/core';
 import { TestBed } from '@angular/core/testing';
 import type { RunDto } from '../../../shared/api/runs';
 import { AuthStore } from '../core/auth-store';
@@ -39,6 +39,8 @@ function fakeWorker() {
 
 function setUp() {
   const worker = fakeWorker();
+  const signOutHooks: (() => Promise<void>)[] = [];
+  const auth = { token: signal<string | null>('token-1'), beforeSignOut: (hook: () => Promise<void>) => { signOutHooks.push(hook); return () => undefined; } };
   const api = {
     update: vi.fn(async () => RUN),
     trainingSet: vi.fn(async () => ({ alphabet: ['a', 'b'], words: ['ab', 'ba'], counts: [2, 1], splits: ['train', 'validation'] })),
@@ -50,11 +52,11 @@ function setUp() {
     providers: [
       provideZonelessChangeDetection(),
       { provide: RunsApi, useValue: api },
-      { provide: AuthStore, useValue: { token: () => 'token-1' } },
+      { provide: AuthStore, useValue: auth },
       { provide: TRAINER_FACTORY, useValue: () => worker.handle },
     ],
   });
-  return { scheduler: TestBed.inject(RunScheduler), worker };
+  return { scheduler: TestBed.inject(RunScheduler), worker, auth, signOutHooks };
 }
 
 const until = async (check: () => boolean) => {
@@ -129,5 +131,28 @@ describe('RunScheduler across tabs (Web Locks)', () => {
     await scheduler.stop('run-1');
     await until(() => live.state() === 'stopped');
     await until(() => !locks.held.has('noisewright-run:run-1'));
+  });
+});
+
+describe('RunScheduler and the end of a session', () => {
+  it('stops the runs and saves their checkpoints before signing out', async () => {
+    const { scheduler, worker, signOutHooks } = setUp();
+    const live = await scheduler.enqueue('b1', RUN);
+    await until(() => live.state() === 'training');
+    expect(signOutHooks.length).toBe(1);
+    await signOutHooks[0]!();
+    expect(live.state()).toBe('stopped');
+    expect(worker.uploads.map((u) => u.url)).toEqual([expect.stringMatching(/reason=stop$/)]);
+    expect(worker.uploads[0]?.token).toBe('token-1');
+  });
+
+  it('stops the runs when the session ends otherwise (the token is gone)', async () => {
+    const { scheduler, worker, auth } = setUp();
+    const live = await scheduler.enqueue('b1', RUN);
+    await until(() => live.state() === 'training');
+    auth.token.set(null);
+    TestBed.tick();
+    await until(() => live.state() === 'stopped');
+    expect(worker.handle.api.stop).toHaveBeenCalled();
   });
 });

@@ -1,4 +1,4 @@
-import { Injectable, OnDestroy, computed, inject, signal } from '@angular/core';
+import { DestroyRef, Injectable, OnDestroy, computed, effect, inject, signal, untracked } from '@angular/core';
 import { proxy } from 'comlink';
 import type { RunDto } from '../../../shared/api/runs';
 import { ApiError, messageOf } from '../core/api-error';
@@ -10,6 +10,8 @@ import { trainerSettingsOf, trainingSetOf } from './run-trainer-settings';
 import { RunsApi } from './runs-api';
 
 const FLUSH_EVERY_MS = 5000;
+/** How long signing out waits for the runs of this tab to stop and save. */
+const SIGN_OUT_WAIT_MS = 20_000;
 const FLUSH_AT_POINTS = 500;
 
 /** A sentence for an error from the server (through HttpClient) or from the worker (through comlink). */
@@ -38,6 +40,16 @@ export class RunScheduler implements OnDestroy {
   private readonly version = signal(0);
 
   readonly limit = Math.max(1, (globalThis.navigator?.hardwareConcurrency ?? 2) - 1);
+
+  constructor() {
+    // Signing out stops this tab's runs first, while the token can still save their final checkpoints.
+    const remove = this.auth.beforeSignOut(() => this.stopAll(SIGN_OUT_WAIT_MS));
+    // A session that ends otherwise (a 401, a deleted account) stops them too; their last save may then fail.
+    effect(() => {
+      if (this.auth.token() === null) untracked(() => void this.stopAll(0));
+    });
+    inject(DestroyRef).onDestroy(remove);
+  }
   /** Every run this tab knows about (active, waiting and ended in this session), newest first. */
   readonly runs = computed(() => { this.version(); return [...this.slots.values()].map((s) => s.live).reverse(); });
   readonly active = computed(() => this.runs().filter((r) => r.isActive));
@@ -117,6 +129,16 @@ export class RunScheduler implements OnDestroy {
     if (!slot.handle || !slot.live.isActive) return;
     slot.live.state.set('stopping');
     await slot.handle.api.stop();
+  }
+
+  /** Stops every run of this tab (waiting ones at once) and waits up to `waitMs` for them to end. */
+  async stopAll(waitMs: number): Promise<void> {
+    const ids = [...this.slots.values()].filter((s) => s.live.isActive || s.live.state() === 'waiting').map((s) => s.live.id);
+    await Promise.all(ids.map((id) => this.stop(id).catch(() => undefined)));
+    const deadline = performance.now() + waitMs;
+    while (performance.now() < deadline && [...this.slots.values()].some((s) => s.live.isActive)) {
+      await new Promise((resolve) => setTimeout(resolve, 50));
+    }
   }
 
   ngOnDestroy(): void {
