@@ -2,12 +2,14 @@
  * Account basics in Chromium on a development server with the demo seed: the sign-in page offers the demo
  * account, a signed-out visitor is sent to sign-in and back, the password can be changed (a wrong current
  * password is reported on its field), sign-out ends the session, and a forgotten password is reset through
- * the link in the captured e-mail (once only).
+ * the link in the captured e-mail (once only). A person deletes their own account: the form asks for the
+ * password and the typed e-mail address, and afterwards the address no longer signs in.
  */
 import assert from 'node:assert/strict';
 import { after, before, test } from 'node:test';
 import { launchBrowser, screenshot, type TestBrowser } from './support/browser';
 import { startTestServer, type TestServer } from './support/test-server';
+import { signUpThroughUi } from './support/workbench';
 
 let server: TestServer;
 let browser: TestBrowser;
@@ -57,7 +59,7 @@ test('demo sign-in, return to the asked page, password change, sign-out and pass
   await page.getByText('Password changed.').waitFor();
   // The session continues with the new token.
   await page.reload();
-  await page.getByRole('heading', { name: 'Account' }).waitFor();
+  await page.getByRole('heading', { name: 'Account', exact: true }).waitFor();
   assert.equal(page.url(), `${server.url}/account`);
 
   // The benches page lists the demo bench.
@@ -117,5 +119,30 @@ test('demo sign-in, return to the asked page, password change, sign-out and pass
   await page.getByRole('button', { name: 'Save the new password' }).click();
   await page.getByRole('alert').filter({ hasText: 'Ask for a new link' }).waitFor();
 
+  assert.deepEqual(problems, [], 'the page threw no errors');
+});
+
+test('a person deletes their own account and can no longer sign in', async () => {
+  const { page, problems } = await browser.newPerson(server.url);
+  const email = 'leaving@example.org';
+  await signUpThroughUi(page, 'Lee Leaving', email);
+  await page.goto('/account');
+  const section = page.getByTestId('delete-account');
+  await section.getByRole('heading', { name: 'Delete account' }).waitFor();
+  const button = section.getByRole('button', { name: 'Delete my account' });
+  // A wrong password is refused on its field; nothing is deleted.
+  await section.getByLabel('Your password').fill('not-my-password');
+  await section.getByLabel('Your e-mail address, to confirm').fill(email);
+  await button.click();
+  await section.getByText(/password/i).filter({ hasText: /wrong|does not match|not right/i }).first().waitFor();
+  await screenshot(page, 'account-06-delete-wrong-password');
+  await section.getByLabel('Your password').fill('long-enough-1');
+  await button.click();
+  await page.waitForURL('**/sign-in');
+  assert.equal(await page.evaluate(() => localStorage.getItem('noisewright.token')), null);
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password').fill('long-enough-1');
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await page.getByRole('alert').filter({ hasText: 'E-mail or password is wrong' }).waitFor();
   assert.deepEqual(problems, [], 'the page threw no errors');
 });
