@@ -4,7 +4,7 @@
  */
 import { signal } from '@angular/core';
 import { Subject } from 'rxjs';
-import type { RunDto } from '../../../shared/api/runs';
+import type { CheckpointDto, RunDto } from '../../../shared/api/runs';
 import type { EngineInfo, TrainingProgress } from '../workers/trainer-api';
 
 export type LiveState = 'waiting' | 'starting' | 'training' | 'paused' | 'stopping' | 'finished' | 'stopped' | 'failed'
@@ -38,8 +38,8 @@ export class LiveRun {
   /** Step of the last checkpoint saved to the server in this session. */
   readonly lastSavedStep = signal<number | null>(null);
   readonly points = new Subject<CurvePoint[]>();
-  /** Emits after a checkpoint was saved, so lists can reload. */
-  readonly checkpointSaved = new Subject<number>();
+  /** Emits the stored checkpoint after a save, so lists can show it without asking the server again. */
+  readonly checkpointSaved = new Subject<CheckpointDto>();
 
   constructor(
     readonly benchId: string,

@@ -255,7 +255,7 @@ export class RunScheduler implements OnDestroy {
     const url = this.api.checkpointUploadUrl(slot.live.benchId, slot.live.id, reason, bound);
     const ck = await slot.handle.api.uploadCheckpoint({ url, token: this.auth.token() });
     slot.live.lastSavedStep.set(ck.step);
-    slot.live.checkpointSaved.next(ck.step);
+    slot.live.checkpointSaved.next(ck);
   }
 
   /** Sends buffered metric points and the run's progress (steps, summary, optional status). */

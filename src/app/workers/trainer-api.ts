@@ -4,6 +4,7 @@
  * structured-clone data; progress comes back through a comlink `proxy` callback and checkpoint bytes through
  * comlink `transfer`.
  */
+import type { CheckpointDto } from '../../../shared/api/runs';
 import type { FlowKind } from '../../../shared/model/flows/flow';
 import type { TrainerErrorCode } from '../../../shared/model/trainer-errors';
 
@@ -111,12 +112,8 @@ export interface CheckpointUploadTarget {
   token: string | null;
 }
 
-/** The part of the server's answer the page uses (the full answer is a `CheckpointDto`). */
-export interface CheckpointUploadAnswer {
-  id: string;
-  step: number;
-  [field: string]: unknown;
-}
+/** The server's answer to a checkpoint upload: the stored checkpoint's description. */
+export type CheckpointUploadAnswer = CheckpointDto;
 
 /** Called from the worker through a comlink proxy (so it returns a promise on the worker's side). */
 export type ProgressCallback = (progress: TrainingProgress) => void | Promise<void>;

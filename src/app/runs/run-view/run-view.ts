@@ -8,7 +8,7 @@ import type { Subscription } from 'rxjs';
 import { KNOWN_METRIC_SERIES, type CheckpointDto, type MetricSeriesPage, type RunDto } from '../../../../shared/api/runs';
 import { messageOf } from '../../core/api-error';
 import { CurrentBench } from '../../benches/current-bench';
-import { Notice } from '../../core/notice';
+import { withSavedCheckpoint } from '../run-checkpoints/checkpoint-list';
 import { RunCheckpoints } from '../run-checkpoints/run-checkpoints';
 import { RunCurves } from '../run-curves/run-curves';
 import { FAMILY_LABELS, STATUS_LABELS, formatDuration } from '../run-labels';
@@ -30,7 +30,6 @@ export class RunView {
   protected readonly bench = inject(CurrentBench);
   protected readonly scheduler = inject(RunScheduler);
   private readonly api = inject(RunsApi);
-  private readonly notice = inject(Notice);
   private readonly curves = viewChild(RunCurves);
 
   protected readonly run = signal<RunDto | null>(null);
@@ -39,6 +38,8 @@ export class RunView {
   protected readonly problem = signal<string | null>(null);
   protected readonly busy = signal(false);
   protected readonly saving = signal(false);
+  /** What the last "Save checkpoint now" did (a plain line beside the button: no overlay to build mid-training). */
+  protected readonly saveNote = signal<{ ok: boolean; text: string } | null>(null);
   protected readonly familyLabels = FAMILY_LABELS;
   protected readonly statusLabels = STATUS_LABELS;
   protected readonly duration = formatDuration;
@@ -79,7 +80,7 @@ export class RunView {
         this.liveSubs.forEach((s) => s.unsubscribe());
         this.liveSubs = [];
         this.curves()?.follow(live?.points ?? null);
-        if (live) this.liveSubs.push(live.checkpointSaved.subscribe(() => void this.refreshCheckpoints()));
+        if (live) this.liveSubs.push(live.checkpointSaved.subscribe((ck) => this.checkpoints.update((list) => withSavedCheckpoint(list, ck))));
       });
     });
     effect(() => {
@@ -125,14 +126,15 @@ export class RunView {
 
   protected pause(): void { void this.scheduler.pause(this.runId()).catch((e: unknown) => this.problem.set(messageOf(e))); }
   protected resume(): void { void this.scheduler.resume(this.runId()).catch((e: unknown) => this.problem.set(messageOf(e))); }
-  /** A checkpoint now, besides the autosaves (listed as "saved by hand"). */
+  /** A checkpoint now, besides the autosaves (listed as "saved by hand"); the outcome shows beside the button. */
   protected async saveNow(): Promise<void> {
     this.saving.set(true);
+    this.saveNote.set(null);
     try {
       const step = await this.scheduler.saveNow(this.runId());
-      this.notice.done(`Checkpoint of step ${step.toLocaleString('en')} saved.`);
+      this.saveNote.set({ ok: true, text: `Saved step ${step.toLocaleString('en')}.` });
     } catch (error) {
-      this.notice.problem(error instanceof Error ? error.message : String(error));
+      this.saveNote.set({ ok: false, text: error instanceof Error ? error.message : String(error) });
     } finally {
       this.saving.set(false);
     }
