@@ -41,6 +41,7 @@ export class RunCurves {
   private readonly data = new Map<string, [number, number][]>(LINES.map((l) => [l.key, []]));
   private subscription: Subscription | null = null;
   private renderTimer: ReturnType<typeof setTimeout> | null = null;
+  private frame = 0;
   private lastRender = 0;
 
   constructor() {
@@ -66,6 +67,7 @@ export class RunCurves {
         cancelAnimationFrame(frame);
         this.subscription?.unsubscribe();
         if (this.renderTimer !== null) clearTimeout(this.renderTimer);
+        cancelAnimationFrame(this.frame);
         this.plot?.destroy();
       });
     });
@@ -96,14 +98,26 @@ export class RunCurves {
     this.scheduleRender();
   }
 
-  /** Redraws at most once a second while points stream in. */
+  /**
+   * Redraws at most about once a second while points stream in, in the animation frame that follows the
+   * message that brought them — the same frame that shows the new progress figures, so the page paints once a
+   * second, not twice. Points that arrive sooner wait; a trailing timer draws the last ones.
+   */
   private scheduleRender(): void {
-    if (this.renderTimer !== null) return;
-    const wait = Math.max(0, RENDER_EVERY_MS - (performance.now() - this.lastRender));
-    this.renderTimer = setTimeout(() => {
+    if (this.frame !== 0) return;
+    if (performance.now() - this.lastRender >= RENDER_EVERY_MS - 100) {
+      if (this.renderTimer !== null) clearTimeout(this.renderTimer);
       this.renderTimer = null;
-      this.render();
-    }, wait);
+      this.frame = requestAnimationFrame(() => {
+        this.frame = 0;
+        this.render();
+      });
+    } else if (this.renderTimer === null) {
+      this.renderTimer = setTimeout(() => {
+        this.renderTimer = null;
+        this.scheduleRender();
+      }, RENDER_EVERY_MS + 500);
+    }
   }
 
   private aligned(): uPlot.AlignedData {
