@@ -93,6 +93,8 @@ test('demo sign-in, return to the asked page, password change, sign-out and pass
   await page.getByRole('button', { name: 'Account menu of Demo Admin' }).click();
   await page.getByRole('menuitem', { name: 'Sign out' }).click();
   await page.getByRole('link', { name: 'Forgot your password?' }).click();
+  // Wait for the new page: the sign-in page's own E-mail field is still there while the route changes.
+  await page.getByRole('heading', { name: 'Forgot your password?' }).waitFor();
   await page.getByLabel('E-mail').fill(demo.email);
   await page.getByRole('button', { name: 'Send the link' }).click();
   await page.getByRole('status').filter({ hasText: demo.email }).waitFor();
