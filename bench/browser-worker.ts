@@ -42,26 +42,18 @@ interface Timing { backend: string; simd: boolean; threads: number; msPerStep: n
 
 /** Same loop in both places: WARMUP untimed steps, then STEPS timed ones. */
 const WORKER_SOURCE = `
-import * as tf from '@tensorflow/tfjs-core';
 import '@tensorflow/tfjs-core/dist/register_all_gradients';
-import '@tensorflow/tfjs-backend-cpu';
-import { getThreadsCount, setWasmPaths } from '@tensorflow/tfjs-backend-wasm';
+import { setUpWorkerBackend } from './src/app/workers/worker-backend';
 import { createEngine } from './src/app/workers/run-engines';
-import { installWasmSliceKernels } from './shared/model/wasm-slice-kernels';
 self.onmessage = async (e) => {
   const { settings, set, steps, warmup } = e.data;
-  setWasmPaths(new URL('tfjs-wasm/', self.location.href).href);
-  tf.env().set('WASM_HAS_MULTITHREAD_SUPPORT', false); // as in the app's worker (worker-backend.ts)
-  installWasmSliceKernels(); // as in the app's worker
-  await tf.setBackend('wasm');
-  await tf.ready();
+  const report = await setUpWorkerBackend(); // the app's workers' own set-up
   const engine = createEngine(settings, set, null);
   for (let i = 0; i < warmup; i++) engine.step();
   const t0 = performance.now();
   for (let i = 0; i < steps; i++) engine.step();
   const ms = (performance.now() - t0) / steps;
-  const simd = (await tf.env().getAsync('WASM_HAS_SIMD_SUPPORT')) === true;
-  self.postMessage({ backend: tf.getBackend(), simd, threads: (() => { try { return getThreadsCount(); } catch { return 1; } })(), msPerStep: ms, wordsPerSecond: settings.batchSize * 1000 / ms });
+  self.postMessage({ ...report, msPerStep: ms, wordsPerSecond: settings.batchSize * 1000 / ms });
   engine.dispose();
 };
 `;

@@ -1,4 +1,5 @@
 import { Routes } from '@angular/router';
+import { openBenchGuard } from './benches/open-bench.guard';
 import { adminGuard, signedInGuard } from './core/auth-guards';
 
 export const routes: Routes = [
@@ -11,32 +12,32 @@ export const routes: Routes = [
   },
   {
     path: 'benches/:benchId/corpora',
-    canActivate: [signedInGuard],
+    canActivate: [signedInGuard, openBenchGuard],
     loadChildren: () => import('./corpora/corpora.routes').then((m) => m.CORPORA_ROUTES),
   },
   {
     path: 'benches/:benchId/runs/:runId/checkpoints/:checkpointId/evaluation',
-    canActivate: [signedInGuard],
+    canActivate: [signedInGuard, openBenchGuard],
     loadChildren: () => import('./evaluation/evaluation.routes').then((m) => m.EVALUATION_ROUTES),
   },
   {
     path: 'benches/:benchId/runs',
-    canActivate: [signedInGuard],
+    canActivate: [signedInGuard, openBenchGuard],
     loadChildren: () => import('./runs/runs.routes').then((m) => m.RUNS_ROUTES),
   },
   {
     path: 'benches/:benchId/compare',
-    canActivate: [signedInGuard],
+    canActivate: [signedInGuard, openBenchGuard],
     loadChildren: () => import('./compare/compare.routes').then((m) => m.COMPARE_ROUTES),
   },
   {
     path: 'benches/:benchId/grids',
-    canActivate: [signedInGuard],
+    canActivate: [signedInGuard, openBenchGuard],
     loadChildren: () => import('./grids/grids.routes').then((m) => m.GRID_ROUTES),
   },
   {
     path: 'benches/:benchId/reports',
-    canActivate: [signedInGuard],
+    canActivate: [signedInGuard, openBenchGuard],
     loadChildren: () => import('./reports/reports.routes').then((m) => m.REPORT_ROUTES),
   },
   {

@@ -187,7 +187,6 @@ export class RunScheduler implements OnDestroy {
   private async train(slot: Slot): Promise<void> {
     const { live } = slot;
     const { benchId, run } = live;
-    live.state.set('starting');
     try {
       const settings = trainerSettingsOf(run);
       if (!run.corpus) throw new Error('The corpus of this run was deleted; it cannot be trained any more.');

@@ -73,7 +73,6 @@ export class CompareHome {
     effect(() => {
       const id = this.benchId();
       untracked(() => {
-        if (this.bench.current()?.id !== id) void this.bench.open(id);
         void this.load(id);
       });
     });

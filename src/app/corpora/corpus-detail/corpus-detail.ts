@@ -46,7 +46,6 @@ export class CorpusDetailPage {
       const benchId = this.benchId();
       const corpusId = this.corpusId();
       untracked(() => {
-        if (this.store.current()?.id !== benchId) void this.store.open(benchId);
         void this.load(benchId, corpusId);
       });
     });

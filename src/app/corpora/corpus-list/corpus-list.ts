@@ -36,7 +36,6 @@ export class CorpusList {
     effect(() => {
       const id = this.benchId();
       untracked(() => {
-        if (this.store.current()?.id !== id) void this.store.open(id);
         void this.load(id);
       });
     });

@@ -79,7 +79,6 @@ export class EvaluationPage {
     effect(() => {
       const [benchId, runId, checkpointId] = [this.benchId(), this.runId(), this.checkpointId()];
       untracked(() => {
-        if (this.bench.current()?.id !== benchId) void this.bench.open(benchId);
         void this.load(benchId, runId, checkpointId);
       });
     });

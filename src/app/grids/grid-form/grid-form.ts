@@ -56,7 +56,6 @@ export class GridForm {
     effect(() => {
       const id = this.benchId();
       untracked(() => {
-        if (this.bench.current()?.id !== id) void this.bench.open(id);
         void this.runsApi.corpora(id).then((c) => this.corpora.set(c)).catch((e) => this.problem.set(formProblem(e, this.form)));
       });
     });

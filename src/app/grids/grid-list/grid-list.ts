@@ -68,7 +68,6 @@ export class GridList {
     effect(() => {
       const id = this.benchId();
       untracked(() => {
-        if (this.bench.current()?.id !== id) void this.bench.open(id);
         this.api.list(id)
           .then((g) => { this.grids.set(g); this.problem.set(null); })
           .catch((e) => this.problem.set(messageOf(e)))

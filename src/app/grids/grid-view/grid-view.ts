@@ -74,13 +74,12 @@ export class GridView {
       if (!this.grid()?.done) timer = setTimeout(() => void poll(), POLL_MS);
     };
     effect(() => {
-      const [benchId, gridId] = [this.benchId(), this.gridId()];
+      this.benchId();
+      this.gridId();
       untracked(() => {
-        if (this.bench.current()?.id !== benchId) void this.bench.open(benchId);
         this.pickedUp = false;
         this.grid.set(null);
         if (timer) clearTimeout(timer);
-        void gridId;
         void poll();
       });
     });

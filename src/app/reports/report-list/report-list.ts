@@ -6,7 +6,6 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatTableModule } from '@angular/material/table';
 import { RouterLink } from '@angular/router';
 import type { ReportKind, ReportSummaryDto } from '../../../../shared/api/reports';
-import { CurrentBench } from '../../benches/current-bench';
 import { messageOf } from '../../core/api-error';
 import { ReportsApi } from '../reports-api';
 
@@ -23,7 +22,6 @@ const KIND_LABELS: Record<ReportKind, string> = { evaluation: 'Evaluation', comp
 export class ReportList {
   readonly benchId = input.required<string>();
   private readonly api = inject(ReportsApi);
-  private readonly bench = inject(CurrentBench);
 
   protected readonly columns = ['title', 'kind', 'createdBy', 'createdAt'];
   protected readonly page = signal({ index: 0, size: 25 });
@@ -36,9 +34,8 @@ export class ReportList {
 
   constructor() {
     effect(() => {
-      const id = this.benchId();
+      this.benchId(); // a new bench starts at the first page
       untracked(() => {
-        if (this.bench.current()?.id !== id) void this.bench.open(id);
         if (this.page().index !== 0) this.page.update((p) => ({ ...p, index: 0 }));
       });
     });

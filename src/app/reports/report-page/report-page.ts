@@ -5,7 +5,6 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
 import { gridFigures, type ReportDto } from '../../../../shared/api/reports';
-import { CurrentBench } from '../../benches/current-bench';
 import { messageOf } from '../../core/api-error';
 import { CompareCurves, type RunCurve } from '../../compare/compare-curves/compare-curves';
 import { compareRows } from '../../compare/compare-rows';
@@ -37,7 +36,6 @@ export class ReportPage {
   readonly benchId = input.required<string>();
   readonly reportId = input.required<string>();
   private readonly api = inject(ReportsApi);
-  private readonly bench = inject(CurrentBench);
   protected readonly kindLabels = KIND_LABELS;
   protected readonly report = signal<ReportDto | null>(null);
   protected readonly problem = signal<string | null>(null);
@@ -69,7 +67,6 @@ export class ReportPage {
     effect(() => {
       const [benchId, reportId] = [this.benchId(), this.reportId()];
       untracked(() => {
-        if (this.bench.current()?.id !== benchId) void this.bench.open(benchId);
         this.api.get(benchId, reportId)
           .then((r) => { this.report.set(r); this.problem.set(null); })
           .catch((e) => this.problem.set(`The report could not be loaded: ${messageOf(e)}`));

@@ -90,7 +90,6 @@ export class NewRun {
     effect(() => {
       const id = this.benchId();
       untracked(() => {
-        if (this.bench.current()?.id !== id) void this.bench.open(id);
         this.api.corpora(id).then((c) => this.corpora.set(c)).catch((e: unknown) => this.problem.set(messageOf(e)));
       });
     });

@@ -64,7 +64,6 @@ export class RunList {
     effect(() => {
       const id = this.benchId();
       untracked(() => {
-        if (this.bench.current()?.id !== id) void this.bench.open(id);
         void this.api.corpora(id).then((c) => this.corpora.set(c)).catch(() => this.corpora.set([]));
       });
     });

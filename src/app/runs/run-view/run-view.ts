@@ -69,7 +69,6 @@ export class RunView {
       const benchId = this.benchId();
       const runId = this.runId();
       untracked(() => {
-        if (this.bench.current()?.id !== benchId) void this.bench.open(benchId);
         void this.load(benchId, runId);
       });
     });
