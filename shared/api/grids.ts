@@ -7,6 +7,7 @@
  * state sizes 8/16/32) whose verdict table the server computes from the runs' stored summaries.
  */
 import { z } from 'zod';
+import { runPlacementSchema, type RunPlacement } from './runners';
 import { flowStackSchema, RUN_FAMILIES, type RunDto, type RunFamily, type RunStatus } from './runs';
 
 export const GRID_KINDS = ['grid', 'learnability'] as const;
@@ -80,6 +81,8 @@ export const createGridSchema = z
       .refine((as) => new Set(as.map((a) => a.key)).size === as.length, 'Use each setting on one axis only.')
       .refine((as) => gridCellCount(as) <= MAX_GRID_CELLS, `A grid has at most ${MAX_GRID_CELLS} cells (the product of the axis lengths); remove values or an axis.`),
     figure: z.enum(GRID_FIGURES, { error: `Choose the figure to map: ${GRID_FIGURES.join(', ')}.` }).default('bestValidationBitsPerChar'),
+    /** Where the grid's runs train (shared/api/runners.ts); the form picks `runners` when any runner is online. */
+    placement: runPlacementSchema.default('tab'),
   })
   .strict();
 export type CreateGridRequest = z.input<typeof createGridSchema>;
@@ -124,6 +127,8 @@ export interface GridSummaryDto {
   done: boolean;
   /** Whether the caller may delete the grid (its creator, coaches, owners). */
   canDelete: boolean;
+  /** Where its runs train. */
+  placement: RunPlacement;
 }
 
 export interface GridDto extends GridSummaryDto {
@@ -147,6 +152,7 @@ export const learnabilityRequestSchema = z
       .min(1, 'Give a budget of at least 1 step.').max(100_000, 'Give a budget of at most 100000 steps.'),
     name: gridName.optional(),
     seed: z.number({ error: 'Give the seed as a number.' }).int('Give the seed as a whole number.').min(0).max(2 ** 31 - 1).default(1),
+    placement: runPlacementSchema.default('tab'),
   })
   .strict();
 export type LearnabilityRequest = z.input<typeof learnabilityRequestSchema>;

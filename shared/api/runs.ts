@@ -5,6 +5,7 @@
  * `shared/model/ssm-settings.ts` and a spec checks that they agree.
  */
 import { z } from 'zod';
+import { runPlacementSchema, type RunLiveProgress, type RunPlacement } from './runners';
 
 export const RUN_FAMILIES = ['ssm', 'gru', 'ngram'] as const;
 export type RunFamily = (typeof RUN_FAMILIES)[number];
@@ -157,9 +158,9 @@ export const ngramRunSettingsSchema = z
 export const createRunSchema = z.discriminatedUnion(
   'family',
   [
-    z.object({ family: z.literal('ssm'), name: runName, corpusId, settings: ssmRunSettingsSchema }).strict(),
-    z.object({ family: z.literal('gru'), name: runName, corpusId, settings: gruRunSettingsSchema }).strict(),
-    z.object({ family: z.literal('ngram'), name: runName, corpusId, settings: ngramRunSettingsSchema }).strict(),
+    z.object({ family: z.literal('ssm'), name: runName, corpusId, settings: ssmRunSettingsSchema, placement: runPlacementSchema.default('tab') }).strict(),
+    z.object({ family: z.literal('gru'), name: runName, corpusId, settings: gruRunSettingsSchema, placement: runPlacementSchema.default('tab') }).strict(),
+    z.object({ family: z.literal('ngram'), name: runName, corpusId, settings: ngramRunSettingsSchema, placement: runPlacementSchema.default('tab') }).strict(),
   ],
   { error: 'Choose a model family: ssm (state-space model), gru or ngram.' },
 );
@@ -275,6 +276,12 @@ export interface RunDto {
   checkpointCount: number;
   /** Whether the caller may control, upload to, archive and delete this run. */
   canControl: boolean;
+  /** Where it trains: a browser tab, or the server's runners (see shared/api/runners.ts). */
+  placement: RunPlacement;
+  /** The runner holding it now (runner runs only). */
+  runner: { id: string; name: string } | null;
+  /** Latest progress of a runner run (null for tab runs and runs no runner has started). */
+  live: RunLiveProgress | null;
   createdAt: string;
   updatedAt: string;
 }

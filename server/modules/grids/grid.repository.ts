@@ -51,6 +51,7 @@ export class GridRepository {
       progress,
       done: runs.every((r) => !ACTIVE_RUN_STATUSES.includes(r.status)),
       canDelete: canDeleteGrid(grid, user, role),
+      placement: 'tab',
     };
   }
 

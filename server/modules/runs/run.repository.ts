@@ -41,6 +41,10 @@ export function toRunDto(run: Run, checkpointCount: number, canControl: boolean)
     archived: run.archived,
     checkpointCount,
     canControl,
+    // Runner placement arrives with the runners module (shared/api/runners.ts); until then every run trains in a tab.
+    placement: 'tab',
+    runner: null,
+    live: null,
     createdAt: run.createdAt.toISOString(),
     updatedAt: run.updatedAt.toISOString(),
   };

@@ -11,7 +11,7 @@ import { RunsApi } from './runs-api';
 const RUN = {
   id: 'run-1', benchId: 'b1', corpus: { id: 'c1', name: 'Syllables' }, createdBy: null, name: 'Little one', family: 'ngram',
   settings: { model: { order: 3 }, training: { checkpointEvery: 0 } }, alphabet: ['a', 'b'], status: 'created', statusReason: null,
-  summary: {}, stepsDone: 0, archived: false, checkpointCount: 0, canControl: true, createdAt: '2026-12-01T00:00:00Z', updatedAt: '2026-12-01T00:00:00Z',
+  summary: {}, stepsDone: 0, archived: false, checkpointCount: 0, canControl: true, placement: 'tab', runner: null, live: null, createdAt: '2026-12-01T00:00:00Z', updatedAt: '2026-12-01T00:00:00Z',
 } as unknown as RunDto;
 
 /** A fake worker: training runs until `stop`; checkpoints are "uploaded" by recording the target. */

@@ -17,7 +17,7 @@ function ssmRun(id: string, name: string, stateSize: number, inference: string, 
     },
     alphabet: ['a', 'b'], status: 'finished', statusReason: null,
     summary: { lastBoundBitsPerChar: 2.5, bestValidationBitsPerChar: stateSize === 8 ? 2.61 : 2.4, parameterCount: 1000 + stateSize },
-    stepsDone: 300, archived: false, checkpointCount: 1, canControl: true, createdAt: '2026-12-01T00:00:00Z', updatedAt: '2026-12-01T00:00:00Z',
+    stepsDone: 300, archived: false, checkpointCount: 1, canControl: true, placement: 'tab', runner: null, live: null, createdAt: '2026-12-01T00:00:00Z', updatedAt: '2026-12-01T00:00:00Z',
   };
 }
 

@@ -22,7 +22,7 @@ const CHECKPOINT_ID = '9d4e1f2a-3b5c-4d6e-8f70-1a2b3c4d5e6f';
 const run = {
   id: RUN_ID, benchId: BENCH, corpus: { id: 'c1', name: 'Syllables' }, createdBy: null, name: 'gru-small', family: 'gru',
   settings: { model: { stateSize: 8 }, training: {} }, alphabet: ['a', 'k'], status: 'stopped', statusReason: null, summary: {},
-  stepsDone: 40, archived: false, checkpointCount: 1, canControl: true, createdAt: '2026-12-01T00:00:00Z', updatedAt: '2026-12-01T00:00:00Z',
+  stepsDone: 40, archived: false, checkpointCount: 1, canControl: true, placement: 'tab', runner: null, live: null, createdAt: '2026-12-01T00:00:00Z', updatedAt: '2026-12-01T00:00:00Z',
 } as unknown as RunDto;
 
 /** Invented figures in the shape `evaluateExact` gives (the page only shows them; none is an expected result). */
