@@ -17,23 +17,33 @@ export interface RunnerThreads {
 
 type StartRunnerThreads = (options: RunnerThreadsOptions) => Promise<RunnerThreads> | RunnerThreads;
 
-/** Starts the threads, or returns null (with one clear log line) when the runner program is missing. */
-export async function startEmbeddedRunnerThreads(options: RunnerThreadsOptions, log: (line: string) => void = console.warn): Promise<RunnerThreads | null> {
+/** Where the runner program's entry for embedded threads lives (relative to this file). */
+export const RUNNER_EMBEDDED_MODULE = '../../../runner/embedded';
+
+/**
+ * Starts the threads, or returns null (with one clear log line) when the runner program is missing.
+ * `specifier` is for tests (another module with the same export).
+ */
+export async function startEmbeddedRunnerThreads(
+  options: RunnerThreadsOptions,
+  log: (line: string) => void = console.warn,
+  specifier: string = RUNNER_EMBEDDED_MODULE,
+): Promise<RunnerThreads | null> {
   // A variable specifier keeps the type check and bundlers from requiring the module at build time.
-  const specifier = '../../../runner/embedded';
   let loaded: { startRunnerThreads?: StartRunnerThreads };
   try {
     loaded = (await import(specifier)) as { startRunnerThreads?: StartRunnerThreads };
   } catch (error) {
     const e = error as NodeJS.ErrnoException;
-    if ((e.code === 'ERR_MODULE_NOT_FOUND' || e.code === 'MODULE_NOT_FOUND') && String(e.message).includes('runner/embedded')) {
-      log('Runner threads are off: the runner program (runner/embedded.ts) is not in this build. Runs sent to runners wait for `npm run runner`.');
+    const base = specifier.split('/').pop()!;
+    if ((e.code === 'ERR_MODULE_NOT_FOUND' || e.code === 'MODULE_NOT_FOUND') && String(e.message).includes(base)) {
+      log(`Runner threads are off: the runner program (${specifier}) is not in this build. Runs sent to runners wait for \`npm run runner\`.`);
       return null;
     }
     throw error;
   }
   if (typeof loaded.startRunnerThreads !== 'function') {
-    log('Runner threads are off: runner/embedded.ts does not export startRunnerThreads.');
+    log(`Runner threads are off: ${specifier} does not export startRunnerThreads.`);
     return null;
   }
   return await loaded.startRunnerThreads(options);

@@ -64,6 +64,11 @@ describe('control of a runner run', () => {
     await runner.progress(run.id, progressAt(60));
     await runner.metrics(run.id, [40, 50, 60, 70].map((step) => ({ series: 'train_bound', step, value: 3 })));
 
+    // A tab's PATCH to pause a run a runner holds is passed to the runner as a control, not applied at once.
+    const patched = await request(t.app).patch(`/api/benches/${f.benchId}/runs/${run.id}`).set(bearer(f.tokens.member)).send({ status: 'paused' });
+    expect(patched.status).toBe(200);
+    expect(patched.body).toMatchObject({ status: 'training', runner: { name: 'Cellar box' } });
+    expect(patched.body.message).toMatch(/saves a checkpoint and pauses/);
     // A viewer may not; the creator may.
     expect((await control(run.id, 'pause', 'viewer')).status).toBe(403);
     const asked = await control(run.id, 'pause');
@@ -103,5 +108,19 @@ describe('control of a runner run', () => {
     const refused = await control(run.id, 'nap');
     expect(refused.status).toBe(422);
     expect(refused.body.error.fields.action).toMatch(/pause, resume or stop/);
+  });
+});
+
+describe('learnability checks on runners', () => {
+  it('queues all eleven runs for runners when sent there', async () => {
+    const res = await request(t.app).post(`/api/benches/${f.benchId}/corpora/${corpus.id}/learnability`).set(bearer(f.tokens.member)).send({ budgetSteps: 20, placement: 'runners' });
+    expect(res.status).toBe(201);
+    expect(res.body.placement).toBe('runners');
+    const rows: { placement: string; status: string }[] = await t.orm.em.fork().getConnection()
+      .execute('select placement, status from runs where grid_id = ?', [res.body.id]);
+    expect(rows).toHaveLength(11);
+    expect(rows.every((r) => r.placement === 'runners' && r.status === 'queued')).toBe(true);
+    const status = await request(t.app).get(`/api/benches/${f.benchId}/runner-status`).set(bearer(f.tokens.viewer));
+    expect(status.body.waiting).toBe(11);
   });
 });

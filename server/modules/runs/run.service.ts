@@ -72,7 +72,7 @@ export class RunService {
   /** Runs `work` under the run's lock with the run re-read from the database first. */
   async locked<T>(run: Run, work: (run: Run) => Promise<T>): Promise<T> {
     return withRunLock(run.id, async () => {
-      await this.em.refresh(run, { populate: ['runner'] } as never);
+      await this.em.refresh(run, { populate: ['runner'] });
       return work(run);
     });
   }
