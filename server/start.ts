@@ -15,7 +15,7 @@ import { smtpMailer, type Mailer } from './modules/mail/mailer';
 import { startEmbeddedRunnerThreads } from './modules/runners/embedded-threads';
 import { createRunQueue } from './modules/runners/queue/create-run-queue';
 import { RunEventBus } from './modules/runners/run-events';
-import { ensureQueuedJobs, prepareEmbeddedRunner } from './modules/runners/runner-startup';
+import { ensureQueuedJobs, prepareEmbeddedRunner, releaseEmbeddedRuns } from './modules/runners/runner-startup';
 import { seedDemoIfEmpty } from './seeders/demo-seed';
 
 export interface RunningServer {
@@ -73,7 +73,9 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
     const runQueue = createRunQueue(config);
     cleanups.push(() => runQueue.close());
     const runEvents = new RunEventBus();
-    const embedded = await prepareEmbeddedRunner(orm, clock);
+    // The runs the previous start's threads held go back to the queue (they resume from their latest checkpoint).
+    const embedded = config.runnerThreads > 0 ? await prepareEmbeddedRunner(orm, clock) : null;
+    if (!embedded) await releaseEmbeddedRuns(orm);
     if (runQueue.backend === 'bullmq') {
       await ensureQueuedJobs(orm, runQueue);
       const timer = setInterval(() => void ensureQueuedJobs(orm, runQueue).catch((error: unknown) => console.error(error)), QUEUE_CHECK_MS);
@@ -105,7 +107,7 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
     server.on('request', createApp(config, { orm, mailer, mailbox, clock, runQueue, runEvents }));
 
     let runnerThreads = 0;
-    if (config.runnerThreads > 0) {
+    if (embedded) {
       const threads = await startEmbeddedRunnerThreads({
         serverUrl: url, token: embedded.token, threads: config.runnerThreads, name: 'This server', ...(config.queueUrl ? { queueUrl: config.queueUrl } : {}),
       });

@@ -8,7 +8,15 @@ import type { EntityManager } from '@mikro-orm/better-sqlite';
 import type { Clock } from '../../clock';
 import type { Orm } from '../../db/orm';
 import type { RunQueue } from './queue/run-queue';
+import { Runner } from './runner.entity';
 import { RunnerRepository } from './runner.repository';
+
+/** Gives the runs the embedded runner's threads held before this start back to the queue (when threads are off). */
+export async function releaseEmbeddedRuns(orm: Orm): Promise<number> {
+  const em = orm.em.fork();
+  const runner = await em.findOne(Runner, { kind: 'embedded' });
+  return runner ? releaseRunsOf(em, runner.id) : 0;
+}
 
 /** Gives the embedded runner's runs back to the queue and returns a new token for its threads. */
 export async function prepareEmbeddedRunner(orm: Orm, clock: Clock): Promise<{ runnerId: string; token: string; released: number }> {
