@@ -58,7 +58,9 @@ export class RunnerWatch {
       else if (e.event === 'progress') progress = parse<RunLiveProgress>(e.data) ?? progress;
       else if (e.event === 'metrics') points.push(...(parse<{ points: CurvePoint[] }>(e.data)?.points ?? []));
     }
-    if (run) this.setRun(run);
+    // A stream carries one DTO for every watcher: the caller's own right to control the run stays the one the
+    // REST answer gave (per person).
+    if (run) this.setRun({ ...run, canControl: this.run().canControl });
     if (progress) this.progress.set(progress);
     if (points.length > 0) this.points.next(points);
   }
