@@ -50,6 +50,7 @@ import type { StreamState } from '../run-events';
             <button mat-stroked-button type="button" [disabled]="busy()" (click)="control.emit('stop')"><mat-icon>stop</mat-icon> Stop</button>
           }
         </div>
+        @if (note(); as n) { <p class="small" role="status" data-testid="runner-note">{{ n }}</p> }
         <p class="nw-muted small">Pause and stop reach the runner within a few seconds; it saves a checkpoint first. Resume queues the run again from its latest checkpoint.</p>
       }
     </div>
@@ -70,6 +71,8 @@ export class RunnerProgress {
   readonly connection = input<StreamState>('connecting');
   readonly canControl = input(false);
   readonly busy = input(false);
+  /** The server's sentence about the last control request, when it changed nothing. */
+  readonly note = input<string | null>(null);
   readonly control = output<RunControlAction>();
   protected readonly duration = formatDuration;
 

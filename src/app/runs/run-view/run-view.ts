@@ -40,6 +40,7 @@ export class RunView {
   /** A run trained by the server's runners, followed through its event stream (null for tab runs). */
   protected readonly runnerWatch = signal<RunnerWatch | null>(null);
   protected readonly controlling = signal(false);
+  protected readonly controlNote = signal<string | null>(null);
 
   protected readonly run = signal<RunDto | null>(null);
   protected readonly checkpoints = signal<CheckpointDto[]>([]);
@@ -86,11 +87,11 @@ export class RunView {
     effect(() => {
       const live = this.live();
       const watch = this.runnerWatch();
-      const curves = this.curves();
       untracked(() => {
         this.liveSubs.forEach((s) => s.unsubscribe());
         this.liveSubs = [];
-        curves?.follow(live?.points ?? watch?.points ?? null);
+        // Before the chart exists it takes the stream from its `live` input instead.
+        this.curves()?.follow(live?.points ?? watch?.points ?? null);
         if (live) this.liveSubs.push(live.checkpointSaved.subscribe((ck) => this.checkpoints.update((list) => withSavedCheckpoint(list, ck))));
         if (watch) {
           this.liveSubs.push(watch.statusChanged.subscribe(() => void this.refreshCheckpoints()));
@@ -136,6 +137,9 @@ export class RunView {
     this.controlling.set(true);
     try {
       const run = await this.runners.control(this.benchId(), this.runId(), action);
+      // The server explains a request that changed nothing (e.g. a stop after the run ended).
+      const note = (run as { message?: unknown }).message;
+      this.controlNote.set(typeof note === 'string' ? note : null);
       const watch = this.runnerWatch();
       if (watch) watch.setRun(run);
       else this.run.set(run);
