@@ -21,7 +21,7 @@ export interface LearnabilityDialogData { benchId: string; corpusId: string; cor
   template: `
     <h2 mat-dialog-title>Learnability check of {{ data.corpusName }}</h2>
     <mat-dialog-content>
-      <p>Trains {{ runCount }} models in this tab's queue with the same budget: character n-grams of order
+      <p>Trains {{ runCount }} models {{ placement() === 'runners' ? 'on the runners' : "in this tab's queue" }} with the same budget: character n-grams of order
         {{ orders.join(', ') }}, and a teacher-forced GRU and a stochastic state-space model at state sizes {{ sizes.join(', ') }}.
         The verdict table says how far each is from the n-gram floor and whether the state-space model is on par with the GRU
         (within {{ tolerance }} bits/char) at each size.</p>
