@@ -32,7 +32,7 @@ import type { StreamState } from '../run-events';
       </div>
       <dl class="figures">
         <dt>Speed</dt>
-        <dd class="nw-num" data-testid="runner-speed">@if (progress()?.stepsPerSecond; as s) { {{ s | number: '1.1-1' }}<span class="nw-unit">steps/s</span> } @else { — }</dd>
+        <dd class="nw-num" data-testid="runner-speed">@if (run().status === 'training' && progress()?.stepsPerSecond; as s) { {{ s | number: '1.1-1' }}<span class="nw-unit">steps/s</span> } @else { — }</dd>
         <dt>Time left</dt><dd class="nw-num" data-testid="runner-eta">{{ run().status === 'training' ? duration(progress()?.etaSeconds) : '—' }}</dd>
         <dt>{{ figureLabel() }}</dt>
         <dd class="nw-num" data-testid="runner-figure">@if (progress()?.bitsPerChar; as b) { {{ b | number: '1.3-3' }}<span class="nw-unit">bits/char, end-of-word symbol counted</span> } @else { — }</dd>

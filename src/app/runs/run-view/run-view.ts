@@ -94,7 +94,7 @@ export class RunView {
         this.curves()?.follow(live?.points ?? watch?.points ?? null);
         if (live) this.liveSubs.push(live.checkpointSaved.subscribe((ck) => this.checkpoints.update((list) => withSavedCheckpoint(list, ck))));
         if (watch) {
-          this.liveSubs.push(watch.statusChanged.subscribe(() => void this.refreshCheckpoints()));
+          this.liveSubs.push(watch.statusChanged.subscribe(() => { this.controlNote.set(null); void this.refreshCheckpoints(); }));
           this.liveSubs.push(watch.reopened.subscribe(() => void this.reloadHistory()));
         }
       });
