@@ -1,7 +1,8 @@
 /**
  * Runners, end to end in Chromium: the server starts two embedded runner threads; the admin sees them on the Runners
  * page; a grid of 4 small GRU runs is sent to the runners from the grid form; the page is closed and the runs keep
- * training (steps grow on the server while no tab is open); the reopened page shows the progress; Stop on the page of
+ * training (steps grow on the server while no tab is open); the reopened page shows the progress; the run list follows
+ * the steps from the bench's event stream; Stop on the page of
  * a training run stops the runner's job (status stopped, no runner holds the run any more, its steps stay put).
  */
 import assert from 'node:assert/strict';
@@ -111,6 +112,16 @@ test('a grid sent to the runners trains with the page closed, and Stop on the ru
     }, stepsOf(grown), { timeout: 30_000 });
     await screenshot(page, 'runners-04-grid-reopened');
 
+    // The run list marks the runner runs and follows their steps from the bench's event stream (no reload).
+    await page.goto(`/benches/${benchId}/runs`);
+    await page.getByTestId('on-runners').first().waitFor();
+    assert.equal(await page.getByTestId('on-runners').count(), 4, 'the four grid runs are marked as trained on runners');
+    const listSteps = () => page.evaluate(() => Array.from(document.querySelectorAll('td.mat-column-stepsDone'))
+      .reduce((sum, td) => sum + Number(/^[\d,]+/.exec((td.textContent ?? '').trim())?.[0]?.replace(/,/g, '') ?? '0'), 0));
+    const listed = await listSteps();
+    await until(listSteps, (n) => n > listed, 60_000, 'steps growing on the run list');
+    await screenshot(page, 'runners-05-run-list');
+
     // A training run's page: runner name and steps/s live, then Stop.
     const training = await until(() => api<GridDto>(`/benches/${benchId}/grids/${gridId}`, token),
       (g) => g.cells.some((c) => c.run?.status === 'training' && c.run.stepsDone > 0), 120_000, 'a training run');
@@ -120,7 +131,7 @@ test('a grid sent to the runners trains with the page closed, and Stop on the ru
     await page.waitForFunction(() => /Training on/.test(document.querySelector('[data-testid=runner-where]')?.textContent ?? ''), null, { timeout: 30_000 });
     await page.waitForFunction(() => /steps\/s/.test(document.querySelector('[data-testid=runner-speed]')?.textContent ?? ''), null, { timeout: 30_000 });
     await page.waitForTimeout(500);
-    await screenshot(page, 'runners-05-run-live');
+    await screenshot(page, 'runners-06-run-live');
     await page.getByRole('button', { name: /Stop/ }).click();
     await page.waitForFunction(() => (document.querySelector('[data-testid=run-state]')?.textContent ?? '').trim() === 'stopped', null, { timeout: 60_000 });
     const stopped = await until(() => api<RunDto>(`/benches/${benchId}/runs/${runId}`, token), (r) => r.status === 'stopped', 30_000, 'the stopped run');
@@ -133,7 +144,7 @@ test('a grid sent to the runners trains with the page closed, and Stop on the ru
     assert.equal(later.status, 'stopped');
     assert.equal(later.stepsDone, stopped.stepsDone, 'a stopped run does not train on');
     assert.equal(await page.getByRole('button', { name: /Resume on the runners/ }).count(), 1, 'a stopped runner run offers resume on the runners');
-    await screenshot(page, 'runners-06-run-stopped');
+    await screenshot(page, 'runners-07-run-stopped');
 
     // Stop the rest so the server shuts down quickly.
     for (const c of (await api<GridDto>(`/benches/${benchId}/grids/${gridId}`, token)).cells) {
