@@ -45,6 +45,14 @@ async function until<T>(read: () => Promise<T>, check: (value: T) => boolean, ti
 
 const stepsOf = (grid: GridDto) => grid.cells.reduce((sum, c) => sum + (c.run?.stepsDone ?? 0), 0);
 
+/** Before a screenshot: the navigation has finished sliding in (its content margin is set) after a full page load. */
+async function settled(page: Page): Promise<void> {
+  await page.waitForFunction(() => {
+    const content = document.querySelector('mat-sidenav-content');
+    return !content || parseFloat(getComputedStyle(content).marginLeft) > 0;
+  }, null, { timeout: 15_000 });
+}
+
 async function pick(page: Page, field: string, options: string[]): Promise<void> {
   await page.getByRole('combobox', { name: field }).click();
   for (const name of options) await page.getByRole('option', { name, exact: true }).click();
@@ -62,6 +70,7 @@ test('a grid sent to the runners trains with the page closed, and Stop on the ru
     await page.waitForURL('**/admin/runners');
     const table = page.getByRole('table', { name: 'Runners' });
     await table.getByText('online', { exact: true }).first().waitFor({ timeout: 60_000 });
+    await settled(page);
     await screenshot(page, 'runners-01-page');
 
     // The grid form offers the runners and picks them by default (a runner is online).
@@ -82,6 +91,7 @@ test('a grid sent to the runners trains with the page closed, and Stop on the ru
     const runnersChoice = page.getByRole('radio', { name: 'Send to runners' });
     await runnersChoice.waitFor();
     assert.equal(await runnersChoice.isChecked(), true, 'a grid goes to the runners by default when a runner is online');
+    await settled(page);
     await screenshot(page, 'runners-02-grid-form');
     await page.getByRole('button', { name: /Create and train/ }).click();
     await page.waitForURL(/\/grids\/[0-9a-f-]{36}$/);
@@ -93,6 +103,7 @@ test('a grid sent to the runners trains with the page closed, and Stop on the ru
 
     // The runners start training; the page shows steps growing without this tab training anything.
     await until(() => api<GridDto>(`/benches/${benchId}/grids/${gridId}`, token), (g) => stepsOf(g) > 0, 180_000, 'the first runner steps');
+    await settled(page);
     await screenshot(page, 'runners-03-grid-training');
 
     // Close the page: the runs go on.
@@ -110,6 +121,7 @@ test('a grid sent to the runners trains with the page closed, and Stop on the ru
       const cells = Array.from(document.querySelectorAll('table.cells tbody tr td:nth-child(4)')).map((td) => Number((td.textContent ?? '').replace(/[^\d]/g, '')));
       return cells.reduce((a, b) => a + b, 0) >= min;
     }, stepsOf(grown), { timeout: 30_000 });
+    await settled(page);
     await screenshot(page, 'runners-04-grid-reopened');
 
     // The run list marks the runner runs and follows their steps from the bench's event stream (no reload).
@@ -120,6 +132,7 @@ test('a grid sent to the runners trains with the page closed, and Stop on the ru
       .reduce((sum, td) => sum + Number(/^[\d,]+/.exec((td.textContent ?? '').trim())?.[0]?.replace(/,/g, '') ?? '0'), 0));
     const listed = await listSteps();
     await until(listSteps, (n) => n > listed, 60_000, 'steps growing on the run list');
+    await settled(page);
     await screenshot(page, 'runners-05-run-list');
 
     // A training run's page: runner name and steps/s live, then Stop.
@@ -131,6 +144,7 @@ test('a grid sent to the runners trains with the page closed, and Stop on the ru
     await page.waitForFunction(() => /Training on/.test(document.querySelector('[data-testid=runner-where]')?.textContent ?? ''), null, { timeout: 30_000 });
     await page.waitForFunction(() => /steps\/s/.test(document.querySelector('[data-testid=runner-speed]')?.textContent ?? ''), null, { timeout: 30_000 });
     await page.waitForTimeout(500);
+    await settled(page);
     await screenshot(page, 'runners-06-run-live');
     await page.getByRole('button', { name: /Stop/ }).click();
     await page.waitForFunction(() => (document.querySelector('[data-testid=run-state]')?.textContent ?? '').trim() === 'stopped', null, { timeout: 60_000 });
@@ -144,6 +158,7 @@ test('a grid sent to the runners trains with the page closed, and Stop on the ru
     assert.equal(later.status, 'stopped');
     assert.equal(later.stepsDone, stopped.stepsDone, 'a stopped run does not train on');
     assert.equal(await page.getByRole('button', { name: /Resume on the runners/ }).count(), 1, 'a stopped runner run offers resume on the runners');
+    await settled(page);
     await screenshot(page, 'runners-07-run-stopped');
 
     // Stop the rest so the server shuts down quickly.
