@@ -156,15 +156,3 @@ describe('RunScheduler and the end of a session', () => {
     expect(worker.handle.api.stop).toHaveBeenCalled();
   });
 });
-
-describe('RunScheduler and runner runs', () => {
-  it('never trains a run sent to the runners', async () => {
-    const { scheduler, worker } = setUp();
-    const api = TestBed.inject(RunsApi) as unknown as { update: ReturnType<typeof vi.fn> };
-    const runnerRun = { ...RUN, id: 'run-2', placement: 'runners' } as RunDto;
-    await expect(scheduler.enqueue('b1', runnerRun)).rejects.toThrow(/sent to the runners/);
-    expect(scheduler.live('run-2')).toBeNull();
-    expect(worker.handle.api.init).not.toHaveBeenCalled();
-    expect(api.update).not.toHaveBeenCalled(); // the server's status stays the runners'
-  });
-});

@@ -11,9 +11,7 @@ import { MAX_COMPARED_RUNS } from '../../../../shared/api/reports';
 import { CurrentBench } from '../../benches/current-bench';
 import { roleAtLeast } from '../../core/api-types';
 import { messageOf } from '../../core/api-error';
-import type { RunDto } from '../../../../shared/api/runs';
 import { ReportsApi } from '../../reports/reports-api';
-import { LiveEvents } from '../../runners/live-events';
 import { STATUS_LABELS } from '../../runs/run-labels';
 import { RunScheduler } from '../../runs/run-scheduler';
 import { axisChoice } from '../grid-axes';
@@ -22,6 +20,8 @@ import { cellFigure, heatmapData } from '../grid-heatmap/heatmap-data';
 import { GridQueue } from '../grid-queue';
 import { GridsApi } from '../grids-api';
 import { LearnabilityVerdictTable } from '../learnability-verdict/learnability-verdict';
+import type { RunDto } from '../../../../shared/api/runs';
+import { LiveEvents } from '../../runners/live-events';
 
 const POLL_MS = 3000;
 /** While the bench's event stream is open, the grid is reloaded when a run's status changes; this slow poll is a safety net. */
@@ -43,10 +43,6 @@ export class GridView {
   private readonly queue = inject(GridQueue);
   private readonly reports = inject(ReportsApi);
   private readonly router = inject(Router);
-  private readonly liveEvents = inject(LiveEvents);
-  /** The latest state of the grid's runs from the bench's event stream (runner runs report their steps there). */
-  private readonly streamed = signal<ReadonlyMap<string, RunDto>>(new Map());
-  private streamOpen = false;
   protected readonly scheduler = inject(RunScheduler);
   protected readonly bench = inject(CurrentBench);
   protected readonly figures = GRID_FIGURES;
@@ -73,6 +69,10 @@ export class GridView {
   });
   protected readonly compareLink = computed(() => (this.grid()?.cells ?? []).map((c) => c.run?.id).filter(Boolean).slice(0, MAX_COMPARED_RUNS).join(','));
   private pickedUp = false;
+  private readonly liveEvents = inject(LiveEvents);
+  /** The latest state of the grid's runs from the bench's event stream (runner runs report their steps there). */
+  private readonly streamed = signal<ReadonlyMap<string, RunDto>>(new Map());
+  private streamOpen = false;
 
   constructor() {
     const destroyRef = inject(DestroyRef);

@@ -71,7 +71,7 @@ export class RunnerProgress {
   readonly connection = input<StreamState>('connecting');
   readonly canControl = input(false);
   readonly busy = input(false);
-  /** The server's sentence about the last control request, when it changed nothing. */
+  /** The server's sentence about the last control request. */
   readonly note = input<string | null>(null);
   readonly control = output<RunControlAction>();
   protected readonly duration = formatDuration;

@@ -9,9 +9,8 @@ import { MatRadioGroupHarness } from '@angular/material/radio/testing';
 import { MatSelectHarness } from '@angular/material/select/testing';
 import { MatStepperHarness } from '@angular/material/stepper/testing';
 import { provideRouter } from '@angular/router';
-import type { RunnerAvailability } from '../../../../shared/api/runners';
-import { CurrentBench } from '../../benches/current-bench';
 import { RunnersApi } from '../../runners/runners-api';
+import { CurrentBench } from '../../benches/current-bench';
 import { RunScheduler } from '../run-scheduler';
 import { RunsApi } from '../runs-api';
 import { NewRun } from './new-run';
@@ -21,19 +20,18 @@ const CORPUS = {
   alphabetSize: 26, unigramEntropyBits: 7, uploadedBy: null, createdAt: '2026-12-01T00:00:00Z', canEdit: true,
 };
 
-const NO_RUNNERS: RunnerAvailability = { backend: 'embedded', onlineRunners: 0, onlineThreads: 0, waiting: 0, active: 0, canSend: true };
-
-async function setUp(availability: RunnerAvailability = NO_RUNNERS) {
-  const create = vi.fn(async (_benchId: string, body: { placement?: string }) => ({ id: 'run-1', placement: body.placement ?? 'tab' }));
+async function setUp() {
+  const create = vi.fn(async () => ({ id: 'run-1' }));
   const enqueue = vi.fn(async () => undefined);
   TestBed.configureTestingModule({
     imports: [NewRun],
     providers: [
       provideZonelessChangeDetection(),
       provideRouter([]),
+      // No runner online: the placement choice keeps the run in this tab (new-run-placement.spec.ts tests the choice).
+      { provide: RunnersApi, useValue: { availability: async () => ({ backend: 'embedded', onlineRunners: 0, onlineThreads: 0, waiting: 0, active: 0, canSend: true }) } },
       { provide: RunsApi, useValue: { corpora: async () => [CORPUS], create } },
       { provide: RunScheduler, useValue: { enqueue } },
-      { provide: RunnersApi, useValue: { availability: async () => availability } },
       { provide: CurrentBench, useValue: { current: signal({ id: 'b1', name: 'Bench' }), open: async () => null } },
     ],
   });
@@ -128,22 +126,5 @@ describe('NewRun form', { timeout: 30_000 }, () => {
     expect(body.name).toBe('First look');
     expect(body.settings.training.steps).toBe(300);
     expect(enqueue).toHaveBeenCalledTimes(1);
-  });
-
-  it('sends the run to the runners when chosen, and then does not train it in this tab', async () => {
-    const { loader, create, enqueue } = await setUp({ ...NO_RUNNERS, onlineRunners: 1, onlineThreads: 3 });
-    await (await loader.getHarness(MatButtonHarness.with({ text: /Quick look/ }))).click();
-    await (await input(loader, 'name')).setValue('Off the tab');
-    await (await loader.getHarness(MatSelectHarness)).clickOptions({ text: /Syllables/ });
-    const stepper = await loader.getHarness(MatStepperHarness);
-    await (await stepper.getSteps({ label: 'Check and start' }))[0]!.select();
-    const where = await loader.getHarness(MatRadioGroupHarness.with({ selector: '[aria-label="Where the training runs"]' }));
-    // A single run defaults to this tab even when runners are online.
-    expect(await where.getCheckedValue()).toBe('tab');
-    await where.checkRadioButton({ label: 'Send to runners' });
-    await (await loader.getHarness(MatButtonHarness.with({ text: /Start training/ }))).click();
-    expect(create).toHaveBeenCalledTimes(1);
-    expect((create.mock.calls[0] as unknown[])[1]).toMatchObject({ placement: 'runners' });
-    expect(enqueue).not.toHaveBeenCalled();
   });
 });

@@ -137,12 +137,13 @@ export class RunView {
     this.controlling.set(true);
     try {
       const run = await this.runners.control(this.benchId(), this.runId(), action);
-      // The server explains a request that changed nothing (e.g. a stop after the run ended).
-      const note = (run as { message?: unknown }).message;
-      this.controlNote.set(typeof note === 'string' ? note : null);
       const watch = this.runnerWatch();
       if (watch) watch.setRun(run);
       else this.run.set(run);
+      // The server's sentence about the request (what the runner does next, or why nothing changed); it stays
+      // until the run's status changes again.
+      const note = (run as { message?: unknown }).message;
+      this.controlNote.set(typeof note === 'string' ? note : null);
       this.problem.set(null);
     } catch (error) {
       this.problem.set(messageOf(error));
