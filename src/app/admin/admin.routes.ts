@@ -6,4 +6,9 @@ export const ADMIN_ROUTES: Routes = [
     title: 'Admin · Noisewright',
     loadComponent: () => import('./admin-page/admin-page').then((m) => m.AdminPage),
   },
+  {
+    path: 'runners',
+    title: 'Runners · Noisewright',
+    loadComponent: () => import('../runners/runners-page/runners-page').then((m) => m.RunnersPage),
+  },
 ];

@@ -15,8 +15,10 @@ export class GridQueue {
   private readonly runs = inject(RunsApi);
   private readonly scheduler = inject(RunScheduler);
 
-  /** Runs of the grid that wait for a worker but are not in this tab's queue (they need "train here"). */
+  /** Runs of the grid that wait for a worker but are not in this tab's queue (they need "train here"); none for a runner grid. */
   orphans(grid: GridDto): string[] {
+    // A grid sent to the runners is theirs to train: this tab never picks up its runs.
+    if (grid.placement === 'runners') return [];
     return grid.cells
       .map((c) => c.run)
       .filter((r): r is NonNullable<typeof r> => !!r && !r.archived && UNFINISHED.includes(r.status))
@@ -32,7 +34,7 @@ export class GridQueue {
     let queued = 0;
     for (const runId of this.orphans(grid)) {
       const [run, checkpoints] = await Promise.all([this.runs.get(benchId, runId), this.runs.checkpoints(benchId, runId)]);
-      if (!run.canControl || !UNFINISHED.includes(run.status)) continue;
+      if (!run.canControl || !UNFINISHED.includes(run.status) || run.placement === 'runners') continue;
       const latest = checkpoints.reduce<CheckpointDto | null>((a, c) => (!a || c.step > a.step ? c : a), null);
       await this.scheduler.enqueue(benchId, run, latest?.id ?? null);
       queued += 1;

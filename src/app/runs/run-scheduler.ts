@@ -63,8 +63,11 @@ export class RunScheduler implements OnDestroy {
   /**
    * Queues a run (fresh, or from a checkpoint); it starts as soon as a worker slot is free. A run that another
    * tab of this browser trains (it holds the run's Web Lock) is not queued: its live state says "elsewhere".
+   * A run whose placement is `runners` is refused (the server's runners train it).
    */
   async enqueue(benchId: string, run: RunDto, fromCheckpointId: string | null = null): Promise<LiveRun> {
+    // The server's runners train these; a tab only watches them (the run page follows their event stream).
+    if (run.placement === 'runners') throw new Error('This run was sent to the runners: they train it, not this tab.');
     const existing = this.slots.get(run.id);
     if (existing && (existing.live.isActive || existing.live.state() === 'waiting')) return existing.live;
     const live = new LiveRun(benchId, run, fromCheckpointId);

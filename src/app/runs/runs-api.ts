@@ -40,8 +40,9 @@ export class RunsApi {
     return firstValueFrom(this.http.post(`${this.base(benchId)}/${enc(runId)}/metrics`, body));
   }
 
-  metrics(benchId: string, runId: string, series: string[]): Promise<MetricSeriesPage> {
-    const params = new HttpParams().set('series', series.join(','));
+  metrics(benchId: string, runId: string, series: string[], sinceStep?: number): Promise<MetricSeriesPage> {
+    let params = new HttpParams().set('series', series.join(','));
+    if (sinceStep !== undefined) params = params.set('sinceStep', sinceStep);
     return firstValueFrom(this.http.get<MetricSeriesPage>(`${this.base(benchId)}/${enc(runId)}/metrics`, { params }));
   }
 

@@ -7,7 +7,9 @@ import { MatInputHarness } from '@angular/material/input/testing';
 import { MatSelectHarness } from '@angular/material/select/testing';
 import { provideRouter } from '@angular/router';
 import { MAX_GRID_CELLS, createGridSchema } from '../../../../shared/api/grids';
+import type { RunnerAvailability } from '../../../../shared/api/runners';
 import { CurrentBench } from '../../benches/current-bench';
+import { RunnersApi } from '../../runners/runners-api';
 import { RunsApi } from '../../runs/runs-api';
 import { GridsApi } from '../grids-api';
 import { GridForm } from './grid-form';
@@ -17,7 +19,9 @@ const CORPUS = {
   alphabetSize: 26, unigramEntropyBits: 7, uploadedBy: null, createdAt: '2026-12-01T00:00:00Z', canEdit: true,
 };
 
-async function setUp(role: 'member' | 'viewer' = 'member') {
+const RUNNERS_ONLINE: RunnerAvailability = { backend: 'embedded', onlineRunners: 1, onlineThreads: 2, waiting: 0, active: 0, canSend: true };
+
+async function setUp(role: 'member' | 'viewer' = 'member', availability: RunnerAvailability = RUNNERS_ONLINE) {
   const create = vi.fn(async () => ({ id: 'grid-1' }));
   TestBed.configureTestingModule({
     imports: [GridForm],
@@ -26,6 +30,7 @@ async function setUp(role: 'member' | 'viewer' = 'member') {
       provideRouter([]),
       { provide: RunsApi, useValue: { corpora: async () => [CORPUS] } },
       { provide: GridsApi, useValue: { create } },
+      { provide: RunnersApi, useValue: { availability: async () => availability } },
       { provide: CurrentBench, useValue: { current: signal({ id: 'b1', name: 'Bench', role }), open: async () => null } },
     ],
   });
@@ -99,6 +104,19 @@ describe('GridForm axes', { timeout: 60_000 }, () => {
     expect(parsed.success).toBe(true);
     expect(parsed.data?.axes).toEqual([{ key: 'model.stateSize', values: [8, 16, 32] }]);
     expect(parsed.data?.corpusId).toBe(CORPUS.id);
+    // A runner is online: a grid goes to the runners unless the person chooses this tab.
+    expect(parsed.data?.placement).toBe('runners');
+  });
+
+  it('keeps the grid in this tab when no runner is online, and says why', async () => {
+    const { loader, select, create, text } = await setUp('member', { ...RUNNERS_ONLINE, onlineRunners: 0, onlineThreads: 0 });
+    await (await loader.getHarness(MatInputHarness.with({ selector: '[formControlName=name]' }))).setValue('Here');
+    const corpus = await select('Corpus');
+    await corpus.open();
+    await corpus.clickOptions({ text: 'Syllables' });
+    expect(text('placement-explanation')).toContain('No runner is online now');
+    await (await loader.getHarness(MatButtonHarness.with({ text: /Create and train/ }))).click();
+    expect(createGridSchema.parse((create.mock.calls[0] as unknown as [string, unknown])[1]).placement).toBe('tab');
   });
 
   it('does not let a viewer start a grid', async () => {

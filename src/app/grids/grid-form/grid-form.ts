@@ -9,10 +9,12 @@ import { MatSelectModule } from '@angular/material/select';
 import { Router, RouterLink } from '@angular/router';
 import { startWith } from 'rxjs';
 import type { CorpusSummary } from '../../../../shared/api/corpora';
+import type { RunPlacement } from '../../../../shared/api/runners';
 import { GRID_FIGURE_LABELS, GRID_FIGURES, MAX_GRID_AXES, MAX_GRID_CELLS } from '../../../../shared/api/grids';
 import { RUN_FAMILIES, type RunFamily } from '../../../../shared/api/runs';
 import { CurrentBench } from '../../benches/current-bench';
 import { roleAtLeast } from '../../core/api-types';
+import { PlacementChoice } from '../../runners/placement-choice/placement-choice';
 import { controlMessage, formProblem } from '../../ui/form-messages';
 import { FAMILY_LABELS } from '../../runs/run-labels';
 import { RunsApi } from '../../runs/runs-api';
@@ -24,7 +26,7 @@ import { cellCountOf, createAxisGroup, createGridForm, createGridRequest } from 
 @Component({
   selector: 'nw-grid-form',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [ReactiveFormsModule, RouterLink, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule],
+  imports: [ReactiveFormsModule, RouterLink, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, PlacementChoice],
   templateUrl: './grid-form.html',
   styleUrl: './grid-form.scss',
 })
@@ -45,6 +47,8 @@ export class GridForm {
   protected readonly corpora = signal<CorpusSummary[]>([]);
   protected readonly problem = signal<string | null>(null);
   protected readonly busy = signal(false);
+  /** Where the grid's runs train (runners by default when any is online). */
+  protected readonly placement = signal<RunPlacement>('tab');
   protected readonly canStart = computed(() => roleAtLeast(this.bench.current()?.role ?? 'viewer', 'member'));
 
   private readonly value = toSignal(this.form.valueChanges.pipe(startWith(null)));
@@ -120,7 +124,7 @@ export class GridForm {
     this.busy.set(true);
     this.problem.set(null);
     try {
-      const grid = await this.api.create(this.benchId(), createGridRequest(this.form));
+      const grid = await this.api.create(this.benchId(), { ...createGridRequest(this.form), placement: this.placement() });
       await this.router.navigate(['/benches', this.benchId(), 'grids', grid.id]);
     } catch (error) {
       this.problem.set(formProblem(error, this.form, 'The grid was not created.'));

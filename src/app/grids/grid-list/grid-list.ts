@@ -35,7 +35,7 @@ import { GridsApi } from '../grids-api';
             @for (g of grids(); track g.id) {
               <tr>
                 <td><a [routerLink]="[g.id]">{{ g.name }}</a></td>
-                <td>{{ g.kind === 'learnability' ? 'Learnability check' : 'Grid' }}</td>
+                <td>{{ g.kind === 'learnability' ? 'Learnability check' : 'Grid' }}@if (g.placement === 'runners') {<span class="nw-unit">on runners</span>}</td>
                 <td>{{ axesOf(g) }}</td>
                 <td>{{ g.corpus?.name ?? '(deleted)' }}</td>
                 <td class="nw-num">{{ g.progress.finished ?? 0 }} / {{ g.cellCount }}</td>

@@ -20,8 +20,12 @@ import { cellFigure, heatmapData } from '../grid-heatmap/heatmap-data';
 import { GridQueue } from '../grid-queue';
 import { GridsApi } from '../grids-api';
 import { LearnabilityVerdictTable } from '../learnability-verdict/learnability-verdict';
+import type { RunDto } from '../../../../shared/api/runs';
+import { LiveEvents } from '../../runners/live-events';
 
 const POLL_MS = 3000;
+/** While the bench's event stream is open, the grid is reloaded when a run's status changes; this slow poll is a safety net. */
+const POLL_WITH_STREAM_MS = 20_000;
 
 /** One grid: progress of its runs, the heat map that fills in as cells finish, and (for a learnability check) the verdict. */
 @Component({
@@ -65,22 +69,30 @@ export class GridView {
   });
   protected readonly compareLink = computed(() => (this.grid()?.cells ?? []).map((c) => c.run?.id).filter(Boolean).slice(0, MAX_COMPARED_RUNS).join(','));
   private pickedUp = false;
+  private readonly liveEvents = inject(LiveEvents);
+  /** The latest state of the grid's runs from the bench's event stream (runner runs report their steps there). */
+  private readonly streamed = signal<ReadonlyMap<string, RunDto>>(new Map());
+  private streamOpen = false;
 
   constructor() {
     const destroyRef = inject(DestroyRef);
     let timer: ReturnType<typeof setTimeout> | null = null;
+    let stream: { close(): void } | null = null;
     const poll = async () => {
       await this.load();
-      if (!this.grid()?.done) timer = setTimeout(() => void poll(), POLL_MS);
+      if (!this.grid()?.done) timer = setTimeout(() => void poll(), this.streamOpen ? POLL_WITH_STREAM_MS : POLL_MS);
     };
     effect(() => {
-      this.benchId();
+      const benchId = this.benchId();
       this.gridId();
       untracked(() => {
         this.pickedUp = false;
         this.grid.set(null);
+        this.streamed.set(new Map());
         if (timer) clearTimeout(timer);
         void poll();
+        stream?.close();
+        stream = this.liveEvents.watchBench(benchId, (runs) => this.onRuns(runs), { onState: (s) => { this.streamOpen = s === 'open'; } });
       });
     });
     // Learners first: once the bench (and so the role) is known, unfinished runs go into this tab's queue.
@@ -88,7 +100,18 @@ export class GridView {
       const g = this.grid();
       if (g && this.canTrain() && !this.pickedUp) untracked(() => void this.trainHere());
     });
-    destroyRef.onDestroy(() => { if (timer) clearTimeout(timer); });
+    destroyRef.onDestroy(() => { if (timer) clearTimeout(timer); stream?.close(); });
+  }
+
+  /** Runs of the bench that changed (at most one batch a second): keep this grid's, reload it when a status changed. */
+  private onRuns(runs: RunDto[]): void {
+    const g = this.grid();
+    if (!g) return;
+    const cells = new Map(g.cells.filter((c) => c.run).map((c) => [c.run!.id, c.run!]));
+    const mine = runs.filter((r) => cells.has(r.id));
+    if (mine.length === 0) return;
+    this.streamed.update((old) => { const next = new Map(old); for (const r of mine) next.set(r.id, r); return next; });
+    if (mine.some((r) => r.status !== cells.get(r.id)!.status)) void this.load();
   }
 
   private async load(): Promise<void> {
@@ -122,7 +145,11 @@ export class GridView {
   protected axisLabel(key: string): string { return axisChoice(key)?.label ?? (key === 'model' ? 'Model' : key); }
   protected cellValue(cell: GridDto['cells'][number]): number | null { return cellFigure(cell, this.figure()); }
   protected liveStep(runId: string | undefined): number | null {
-    return runId ? this.scheduler.live(runId)?.progress()?.step ?? null : null;
+    if (!runId) return null;
+    const tab = this.scheduler.live(runId)?.progress()?.step;
+    if (tab !== undefined) return tab;
+    const r = this.streamed().get(runId);
+    return r ? Math.max(r.stepsDone, r.live?.step ?? 0) : null;
   }
   protected setY(v: number | 'none'): void { this.yAxis.set(v === 'none' ? null : v); }
 

@@ -5,7 +5,9 @@ import { MAT_DIALOG_DATA, MatDialogModule, MatDialogRef } from '@angular/materia
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
+import type { RunPlacement } from '../../../../shared/api/runners';
 import { LEARNABILITY_NGRAM_ORDERS, LEARNABILITY_STATE_SIZES, LEARNABILITY_TOLERANCE_BITS } from '../../../../shared/api/grids';
+import { PlacementChoice } from '../../runners/placement-choice/placement-choice';
 import { formProblem } from '../../ui/form-messages';
 import { GridsApi } from '../grids-api';
 
@@ -15,11 +17,11 @@ export interface LearnabilityDialogData { benchId: string; corpusId: string; cor
 @Component({
   selector: 'nw-learnability-dialog',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [ReactiveFormsModule, MatButtonModule, MatDialogModule, MatFormFieldModule, MatIconModule, MatInputModule],
+  imports: [ReactiveFormsModule, MatButtonModule, MatDialogModule, MatFormFieldModule, MatIconModule, MatInputModule, PlacementChoice],
   template: `
     <h2 mat-dialog-title>Learnability check of {{ data.corpusName }}</h2>
     <mat-dialog-content>
-      <p>Trains {{ runCount }} models in this tab's queue with the same budget: character n-grams of order
+      <p>Trains {{ runCount }} models {{ placement() === 'runners' ? 'on the runners' : "in this tab's queue" }} with the same budget: character n-grams of order
         {{ orders.join(', ') }}, and a teacher-forced GRU and a stochastic state-space model at state sizes {{ sizes.join(', ') }}.
         The verdict table says how far each is from the n-gram floor and whether the state-space model is on par with the GRU
         (within {{ tolerance }} bits/char) at each size.</p>
@@ -29,6 +31,7 @@ export interface LearnabilityDialogData { benchId: string; corpusId: string; cor
         <mat-hint>Small budgets give a quick but rough verdict; 300–1,000 steps is a useful first look.</mat-hint>
         <mat-error>Give a whole number of steps from 1 to 100,000.</mat-error>
       </mat-form-field>
+      <nw-placement-choice [benchId]="data.benchId" [(placement)]="placement" [preferRunners]="true" [plural]="true" />
       @if (problem(); as m) { <p class="nw-problem" role="alert"><mat-icon>error</mat-icon><span>{{ m }}</span></p> }
     </mat-dialog-content>
     <mat-dialog-actions align="end">
@@ -50,6 +53,7 @@ export class LearnabilityDialog {
     validators: [Validators.required, Validators.min(1), Validators.max(100_000), Validators.pattern(/^\d+$/)] });
   private readonly group = new FormGroup({ budgetSteps: this.budget });
   protected readonly busy = signal(false);
+  protected readonly placement = signal<RunPlacement>('tab');
   protected readonly problem = signal<string | null>(null);
 
   protected async start(): Promise<void> {
@@ -57,7 +61,7 @@ export class LearnabilityDialog {
     if (this.budget.invalid) return;
     this.busy.set(true);
     try {
-      const grid = await this.api.learnability(this.data.benchId, this.data.corpusId, { budgetSteps: +this.budget.value });
+      const grid = await this.api.learnability(this.data.benchId, this.data.corpusId, { budgetSteps: +this.budget.value, placement: this.placement() });
       this.ref.close(grid.id);
     } catch (error) {
       this.problem.set(formProblem(error, this.group, 'The check was not started.'));

@@ -9,6 +9,7 @@ import { MatRadioGroupHarness } from '@angular/material/radio/testing';
 import { MatSelectHarness } from '@angular/material/select/testing';
 import { MatStepperHarness } from '@angular/material/stepper/testing';
 import { provideRouter } from '@angular/router';
+import { RunnersApi } from '../../runners/runners-api';
 import { CurrentBench } from '../../benches/current-bench';
 import { RunScheduler } from '../run-scheduler';
 import { RunsApi } from '../runs-api';
@@ -27,6 +28,8 @@ async function setUp() {
     providers: [
       provideZonelessChangeDetection(),
       provideRouter([]),
+      // No runner online: the placement choice keeps the run in this tab (new-run-placement.spec.ts tests the choice).
+      { provide: RunnersApi, useValue: { availability: async () => ({ backend: 'embedded', onlineRunners: 0, onlineThreads: 0, waiting: 0, active: 0, canSend: true }) } },
       { provide: RunsApi, useValue: { corpora: async () => [CORPUS], create } },
       { provide: RunScheduler, useValue: { enqueue } },
       { provide: CurrentBench, useValue: { current: signal({ id: 'b1', name: 'Bench' }), open: async () => null } },

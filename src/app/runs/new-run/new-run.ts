@@ -13,9 +13,11 @@ import { MatSelectModule } from '@angular/material/select';
 import { MatStepperModule } from '@angular/material/stepper';
 import { Router, RouterLink } from '@angular/router';
 import type { CorpusSummary } from '../../../../shared/api/corpora';
+import type { RunPlacement } from '../../../../shared/api/runners';
 import { FLOW_KINDS, type FlowKind } from '../../../../shared/model/flows/flow';
 import { ApiError, messageOf } from '../../core/api-error';
 import { CurrentBench } from '../../benches/current-bench';
+import { PlacementChoice } from '../../runners/placement-choice/placement-choice';
 import { applyServerErrors } from '../../ui/form-messages';
 import { FAMILY_LABELS, FLOW_LABELS, formatDuration } from '../run-labels';
 import { applyPreset, createRunForm, createRunRequest, trainerSettingsFromForm, type PRESETS } from '../run-form';
@@ -45,7 +47,7 @@ export function fieldMessage(c: AbstractControl, label: string): string {
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     DecimalPipe, ReactiveFormsModule, RouterLink, MatButtonModule, MatCheckboxModule, MatChipsModule, MatFormFieldModule, MatIconModule,
-    MatInputModule, MatRadioModule, MatSelectModule, MatStepperModule,
+    MatInputModule, MatRadioModule, MatSelectModule, MatStepperModule, PlacementChoice,
   ],
   templateUrl: './new-run.html',
   styleUrl: './new-run.scss',
@@ -66,6 +68,8 @@ export class NewRun {
   protected readonly corpora = signal<CorpusSummary[]>([]);
   protected readonly problem = signal<string | null>(null);
   protected readonly busy = signal(false);
+  /** Where the run trains: this tab's scheduler, or the server's runners (the tab then only watches). */
+  protected readonly placement = signal<RunPlacement>('tab');
 
   private readonly value = toSignal(this.form.valueChanges, { initialValue: this.form.getRawValue() });
   protected readonly family = computed(() => { this.value(); return this.form.controls.model.controls.family.value; });
@@ -124,8 +128,8 @@ export class NewRun {
     this.busy.set(true);
     this.problem.set(null);
     try {
-      const run = await this.api.create(this.benchId(), createRunRequest(this.form.getRawValue()));
-      await this.scheduler.enqueue(this.benchId(), run);
+      const run = await this.api.create(this.benchId(), { ...createRunRequest(this.form.getRawValue()), placement: this.placement() });
+      if (run.placement !== 'runners') await this.scheduler.enqueue(this.benchId(), run);
       await this.router.navigate(['/benches', this.benchId(), 'runs', run.id]);
     } catch (error) {
       if (error instanceof ApiError && Object.keys(error.fields).length > 0) {

@@ -13,6 +13,7 @@ import type { CorpusSummary } from '../../../../shared/api/corpora';
 import { RUN_FAMILIES, RUN_SORT_FIELDS, RUN_STATUSES, type RunDto, type RunFamily, type RunStatus } from '../../../../shared/api/runs';
 import { messageOf } from '../../core/api-error';
 import { CurrentBench } from '../../benches/current-bench';
+import { LiveEvents } from '../../runners/live-events';
 import { CheckpointImport } from '../checkpoint-import/checkpoint-import';
 import { FAMILY_SHORT, STATUS_LABELS } from '../run-labels';
 import { LIVE_STATE_LABELS } from '../live-run';
@@ -37,6 +38,7 @@ export class RunList {
   protected readonly bench = inject(CurrentBench);
   protected readonly scheduler = inject(RunScheduler);
   private readonly api = inject(RunsApi);
+  private readonly liveEvents = inject(LiveEvents);
 
   protected readonly families = RUN_FAMILIES;
   protected readonly statuses = RUN_STATUSES;
@@ -66,6 +68,12 @@ export class RunList {
       untracked(() => {
         void this.api.corpora(id).then((c) => this.corpora.set(c)).catch(() => this.corpora.set([]));
       });
+    });
+    // Runs that change elsewhere (runners, other tabs) update in place from the bench's event stream.
+    effect((onCleanup) => {
+      const id = this.benchId();
+      const stream = untracked(() => this.liveEvents.watchBench(id, (runs) => this.patch(runs), { poll: () => this.reload() }));
+      onCleanup(() => stream.close());
     });
     effect(() => {
       const query = {
@@ -100,6 +108,13 @@ export class RunList {
       q: this.search().trim() || undefined, sort: this.sort().field, dir: this.sort().dir,
       limit: this.pageSize(), offset: this.pageIndex() * this.pageSize(),
     });
+  }
+
+  /** Replaces listed runs by their newer state (runs not on this page are left to the next load). */
+  private patch(runs: RunDto[]): void {
+    const latest = new Map(runs.map((r) => [r.id, r]));
+    if (!this.items().some((r) => latest.has(r.id))) return;
+    this.items.update((list) => list.map((r) => latest.get(r.id) ?? r));
   }
 
   protected setFilter<T>(target: { set(v: T): void }, value: T): void {

@@ -5,9 +5,13 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
 import type { Subscription } from 'rxjs';
+import type { RunControlAction } from '../../../../shared/api/runners';
 import { KNOWN_METRIC_SERIES, type CheckpointDto, type MetricSeriesPage, type RunDto } from '../../../../shared/api/runs';
 import { messageOf } from '../../core/api-error';
 import { CurrentBench } from '../../benches/current-bench';
+import { LiveEvents, type RunnerWatch } from '../../runners/live-events';
+import { RunnerProgress } from '../../runners/runner-progress/runner-progress';
+import { RunnersApi } from '../../runners/runners-api';
 import { withSavedCheckpoint } from '../run-checkpoints/checkpoint-list';
 import { RunCheckpoints } from '../run-checkpoints/run-checkpoints';
 import { RunCurves } from '../run-curves/run-curves';
@@ -20,7 +24,7 @@ import { RunsApi } from '../runs-api';
 @Component({
   selector: 'nw-run-view',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DecimalPipe, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RunCheckpoints, RunCurves],
+  imports: [DecimalPipe, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RunCheckpoints, RunCurves, RunnerProgress],
   templateUrl: './run-view.html',
   styleUrl: './run-view.scss',
 })
@@ -30,7 +34,13 @@ export class RunView {
   protected readonly bench = inject(CurrentBench);
   protected readonly scheduler = inject(RunScheduler);
   private readonly api = inject(RunsApi);
+  private readonly runners = inject(RunnersApi);
+  private readonly liveEvents = inject(LiveEvents);
   private readonly curves = viewChild(RunCurves);
+  /** A run trained by the server's runners, followed through its event stream (null for tab runs). */
+  protected readonly runnerWatch = signal<RunnerWatch | null>(null);
+  protected readonly controlling = signal(false);
+  protected readonly controlNote = signal<string | null>(null);
 
   protected readonly run = signal<RunDto | null>(null);
   protected readonly checkpoints = signal<CheckpointDto[]>([]);
@@ -72,21 +82,74 @@ export class RunView {
         void this.load(benchId, runId);
       });
     });
-    // Follow the run's live stream (curves, checkpoint list, end of training) whenever this tab trains it.
+    // Follow the run's live stream (curves, checkpoint list, end of training) whenever this tab trains it,
+    // or the runners' event stream when the runners train it.
     effect(() => {
       const live = this.live();
+      const watch = this.runnerWatch();
       untracked(() => {
         this.liveSubs.forEach((s) => s.unsubscribe());
         this.liveSubs = [];
-        this.curves()?.follow(live?.points ?? null);
+        // Before the chart exists it takes the stream from its `live` input instead.
+        this.curves()?.follow(live?.points ?? watch?.points ?? null);
         if (live) this.liveSubs.push(live.checkpointSaved.subscribe((ck) => this.checkpoints.update((list) => withSavedCheckpoint(list, ck))));
+        if (watch) {
+          this.liveSubs.push(watch.statusChanged.subscribe(() => { this.controlNote.set(null); void this.refreshCheckpoints(); }));
+          this.liveSubs.push(watch.reopened.subscribe(() => void this.reloadHistory()));
+        }
       });
+    });
+    // The watched runner run is the page's run (updated at most once a second).
+    effect(() => {
+      const run = this.runnerWatch()?.run();
+      if (run && run.id === untracked(() => this.runId())) untracked(() => this.run.set(run));
     });
     effect(() => {
       const state = this.live()?.state();
       if (state === 'finished' || state === 'stopped' || state === 'failed') untracked(() => void this.refreshRun());
     });
-    inject(DestroyRef).onDestroy(() => this.liveSubs.forEach((s) => s.unsubscribe()));
+    inject(DestroyRef).onDestroy(() => {
+      this.liveSubs.forEach((s) => s.unsubscribe());
+      this.runnerWatch()?.close();
+    });
+  }
+
+  /** Starts (or ends) following the runners' event stream as the loaded run's placement says. */
+  private followRunners(benchId: string, run: RunDto): void {
+    const current = this.runnerWatch();
+    if (current && current.run().id === run.id && run.placement === 'runners') return;
+    current?.close();
+    this.runnerWatch.set(run.placement === 'runners' ? this.liveEvents.watchRun(benchId, run) : null);
+  }
+
+  private async reloadHistory(): Promise<void> {
+    try {
+      const metrics = await this.api.metrics(this.benchId(), this.runId(), [...KNOWN_METRIC_SERIES]);
+      this.history.set(metrics.series);
+      this.curves()?.reset(metrics.series);
+    } catch (error) {
+      this.problem.set(messageOf(error));
+    }
+  }
+
+  /** Pause, resume or stop a runner run (through the server; the runner sees it within one progress interval). */
+  protected async control(action: RunControlAction): Promise<void> {
+    this.controlling.set(true);
+    try {
+      const run = await this.runners.control(this.benchId(), this.runId(), action);
+      const watch = this.runnerWatch();
+      if (watch) watch.setRun(run);
+      else this.run.set(run);
+      // The server's sentence about the request (what the runner does next, or why nothing changed); it stays
+      // until the run's status changes again.
+      const note = (run as { message?: unknown }).message;
+      this.controlNote.set(typeof note === 'string' ? note : null);
+      this.problem.set(null);
+    } catch (error) {
+      this.problem.set(messageOf(error));
+    } finally {
+      this.controlling.set(false);
+    }
   }
 
   private async load(benchId: string, runId: string): Promise<void> {
@@ -95,6 +158,7 @@ export class RunView {
         this.api.get(benchId, runId), this.api.checkpoints(benchId, runId), this.api.metrics(benchId, runId, [...KNOWN_METRIC_SERIES]),
       ]);
       this.run.set(run);
+      this.followRunners(benchId, run);
       this.checkpoints.set(checkpoints);
       if (!this.live()?.isActive) {
         this.history.set(metrics.series);
