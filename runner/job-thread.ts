@@ -10,7 +10,7 @@ import { RunnerApi } from './runner-api';
 import { trainJob, type JobCommand, type JobResult } from './train-job';
 
 export type ToThread =
-  | { type: 'job'; job: RunnerJob; serverUrl: string; token: string }
+  | { type: 'job'; job: RunnerJob; serverUrl: string; token: string; command: JobCommand | null }
   | { type: 'command'; command: JobCommand };
 export type FromThread =
   | { type: 'ready'; backend: string }
@@ -29,7 +29,7 @@ port.on('message', (m: ToThread) => {
     if (command !== 'shutdown') command = m.command;
     return;
   }
-  command = null;
+  command = m.command;
   void trainJob(m.job, new RunnerApi(m.serverUrl, m.token), {
     command: () => command,
     onProgress: (progress) => send({ type: 'progress', progress }),

@@ -14,6 +14,8 @@ export class ThreadSlot {
   private ready!: Promise<void>;
   private pending: { job: RunnerJob; resolve: (r: JobResult) => void } | null = null;
   private closing = false;
+  private started = false;
+  private early: JobCommand | null = null;
   /** The latest progress of the current job (null when idle). */
   progress: JobProgress | null = null;
 
@@ -32,15 +34,24 @@ export class ThreadSlot {
   /** Trains `job` in this thread; resolves when it ended (finished, paused, stopped, failed, handed back or lost). */
   async run(job: RunnerJob, serverUrl: string, token: string): Promise<JobResult> {
     if (this.pending) throw new Error(`Thread ${this.index} is busy with run ${this.pending.job.runId}.`);
-    await this.ready;
     const result = new Promise<JobResult>((resolve) => { this.pending = { job, resolve }; });
+    this.started = false;
+    this.early = null;
     this.progress = { runId: job.runId, runName: job.runName, step: job.stepsDone, steps: 0, stepsPerSecond: null, bitsPerChar: null, isBound: null };
-    this.post({ type: 'job', job, serverUrl, token });
+    await this.ready;
+    this.started = true;
+    this.post({ type: 'job', job, serverUrl, token, command: this.early });
     return result;
   }
 
+  /** A command for the current job; one that comes while the thread still starts goes along with the job. */
   command(command: JobCommand): void {
-    if (this.pending) this.post({ type: 'command', command });
+    if (!this.pending) return;
+    if (!this.started) {
+      if (this.early !== 'shutdown') this.early = command;
+      return;
+    }
+    this.post({ type: 'command', command });
   }
 
   async close(): Promise<void> {

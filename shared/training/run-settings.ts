@@ -28,7 +28,8 @@ export function trainerSettingsOf(run: Pick<RunDto, 'family' | 'settings'>): Tra
     const m = (run.settings as GruRunSettings).model;
     return { ...base, stateSize: m.stateSize, embeddingSize: m.embedSize, observationHidden: m.obsHidden };
   }
-  return { ...base, order: (run.settings as NgramRunSettings).model.order, steps: 0 };
+  const m = (run.settings as NgramRunSettings).model;
+  return { ...base, order: m.order, discount: m.discount ?? null, steps: 0 };
 }
 
 /**
