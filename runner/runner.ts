@@ -6,7 +6,7 @@
  * `queued` after saving a checkpoint. The server starts its embedded runner threads with `startRunnerThreads`.
  */
 import { hostname } from 'node:os';
-import { Worker as QueueWorker, type Job } from 'bullmq';
+import { DelayedError, Worker as QueueWorker, type Job } from 'bullmq';
 import { Redis } from 'ioredis';
 import {
   RUNNER_QUEUE_NAME, RUNNER_WORKER_LOCK_MS, RUNNER_WORKER_MAX_STALLED, RUNNER_WORKER_STALLED_INTERVAL_MS, type RunnerJob, type RunnerQueueJobData,
@@ -35,8 +35,6 @@ export interface RunnerHandle {
 const HEARTBEAT_EVERY_MS = 5000;
 const IDLE_FIRST_MS = 500;
 const IDLE_MAX_MS = 5000;
-/** Longest wait for another runner's lease on a BullMQ job's run before the job is retried later. */
-const HELD_WAIT_MAX_MS = 120_000;
 /** How long `stop()` waits for jobs to save and hand back before ending the threads anyway. */
 const STOP_WAIT_MS = 60_000;
 
@@ -85,12 +83,28 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
   if (o.queueUrl) {
     const free = [...slots];
     connection = new Redis(o.queueUrl, { maxRetriesPerRequest: null });
-    queueWorker = new QueueWorker<RunnerQueueJobData>(RUNNER_QUEUE_NAME, async (job: Job<RunnerQueueJobData>) => {
-      const slot = free.shift();
-      if (!slot) throw new HandedBack('No free runner thread (more jobs than threads).');
+    queueWorker = new QueueWorker<RunnerQueueJobData>(RUNNER_QUEUE_NAME, async (job: Job<RunnerQueueJobData>, lockToken?: string) => {
+      if (stopping) throw new HandedBack('The runner is shutting down.');
+      let claimed: RunnerJob | null;
       try {
-        const claimed = await claimHeld(job.data.runId);
-        if (!claimed) return 'nothing to do';
+        claimed = await api.claim(job.data.runId);
+      } catch (e) {
+        if (e instanceof RunnerApiError && e.code === 'RUN_NOT_QUEUED') return 'not queued';
+        if (e instanceof RunnerApiError && e.code === 'RUN_HELD') {
+          // Another runner's lease is still fresh (a killed runner's lease runs out): try again when it has,
+          // without holding a thread meanwhile or using up an attempt.
+          await job.moveToDelayed(Date.now() + Math.max(1, e.retryAfterSeconds ?? 5) * 1000, lockToken);
+          throw new DelayedError();
+        }
+        throw e;
+      }
+      if (!claimed) return 'nothing to do';
+      const slot = free.shift();
+      if (!slot) {
+        await api.finish(claimed.runId, { status: 'queued', stepsDone: claimed.stepsDone }).catch(() => undefined);
+        throw new HandedBack('No free runner thread (more jobs than threads).');
+      }
+      try {
         const result = await train(slot, claimed);
         // Handed back on shutdown: fail this attempt so BullMQ gives the job to another runner after the backoff.
         if (result.status === 'queued') throw new HandedBack(`Run ${claimed.runId} was handed back at step ${result.step}.`);
@@ -126,21 +140,6 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
         await train(slot, job);
       }
     });
-  }
-
-  /** Claims a BullMQ job's run, waiting while another runner's lease on it is still fresh (a killed runner). */
-  async function claimHeld(runId: string): Promise<RunnerJob | null> {
-    const deadline = Date.now() + HELD_WAIT_MAX_MS;
-    for (;;) {
-      if (stopping) throw new HandedBack('The runner is shutting down.');
-      try {
-        return await api.claim(runId);
-      } catch (e) {
-        if (e instanceof RunnerApiError && e.code === 'RUN_NOT_QUEUED') return null;
-        if (!(e instanceof RunnerApiError && e.code === 'RUN_HELD') || Date.now() > deadline) throw e;
-        await sleep(Math.min(10, Math.max(1, e.retryAfterSeconds ?? 5)) * 1000);
-      }
-    }
   }
 
   return {
