@@ -145,7 +145,7 @@ export async function runsOf(base: string, lab: Lab): Promise<RunDto[]> {
 }
 
 export async function trainSteps(base: string, lab: Lab, runId: string): Promise<number[]> {
-  const page = await api<MetricSeriesPage>(base, `/benches/${lab.benchId}/runs/${runId}/metrics?series=train_bound&limit=100000`, lab.token);
+  const page = await api<MetricSeriesPage>(base, `/benches/${lab.benchId}/runs/${runId}/metrics?series=train_bound&limit=50000`, lab.token);
   return page.series['train_bound']?.steps ?? [];
 }
 
