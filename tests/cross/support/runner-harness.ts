@@ -56,6 +56,7 @@ export async function startRedis(): Promise<RedisProcess> {
   const { Redis } = await import('ioredis');
   await waitFor('redis-server to answer PING', async () => {
     const client = new Redis(url, { lazyConnect: true, maxRetriesPerRequest: 0, retryStrategy: () => null });
+    client.on('error', () => undefined); // refused while redis-server starts: the probe just tries again
     try {
       await client.connect();
       return (await client.ping()) === 'PONG';
