@@ -4,6 +4,8 @@ import type { Config } from './config';
 import type { Orm } from './db/orm';
 import type { Mailbox } from './modules/mail/mailbox';
 import type { Mailer } from './modules/mail/mailer';
+import type { RunQueue } from './modules/runners/queue/run-queue';
+import type { RunEventBus } from './modules/runners/run-events';
 
 export interface AppDeps {
   orm: Orm;
@@ -13,6 +15,10 @@ export interface AppDeps {
   clock?: Clock;
   /** Where server faults are reported; defaults to console.error. */
   logError?: (error: unknown) => void;
+  /** The queue of runner runs; defaults to the embedded one (required when QUEUE_URL is set). */
+  runQueue?: RunQueue;
+  /** The bus run changes are published on (server-sent events); defaults to a new one. */
+  runEvents?: RunEventBus;
 }
 
 export interface AppContext {
@@ -22,4 +28,6 @@ export interface AppContext {
   mailbox: Mailbox | null;
   clock: Clock;
   logError: (error: unknown) => void;
+  runQueue: RunQueue;
+  runEvents: RunEventBus;
 }

@@ -15,11 +15,14 @@ import { loadBench } from './middleware/bench-access';
 import { apiNotFound, errorHandler } from './middleware/error-handler';
 import { securityHeaders } from './middleware/security-headers';
 import { serverModules } from './modules/registry';
+import { EmbeddedRunQueue } from './modules/runners/queue/run-queue';
+import { RunEventBus } from './modules/runners/run-events';
 import { ErrorCode } from '../shared/api/errors';
 import { HttpError } from './http-error';
 import './request-state';
 
 export function createApp(config: Config, deps: AppDeps): Express {
+  if (config.queueUrl && !deps.runQueue) throw new Error('createApp: QUEUE_URL is set; pass the BullMQ run queue (createRunQueue) in deps.runQueue.');
   const ctx: AppContext = {
     config,
     orm: deps.orm,
@@ -27,6 +30,8 @@ export function createApp(config: Config, deps: AppDeps): Express {
     mailbox: deps.mailbox ?? null,
     clock: deps.clock ?? systemClock,
     logError: deps.logError ?? ((error) => console.error(error)),
+    runQueue: deps.runQueue ?? new EmbeddedRunQueue(),
+    runEvents: deps.runEvents ?? new RunEventBus(),
   };
   const app = express();
   app.disable('x-powered-by');

@@ -3,6 +3,7 @@
  * `loadConfig(process.env)` in main.ts; tests build their own with `loadConfig({ ... })`.
  */
 import { randomBytes } from 'node:crypto';
+import { availableParallelism } from 'node:os';
 import { dirname, join } from 'node:path';
 import { z } from 'zod';
 
@@ -40,6 +41,10 @@ export interface Config {
   staticDir: string;
   /** Reverse proxies in front of the server (0 = none); the rate limit then keys on the client address they forward. */
   trustProxyHops: number;
+  /** Redis URL of the BullMQ queue of runner runs; null = the embedded queue (rows in SQLite). */
+  queueUrl: string | null;
+  /** Runner threads the server starts itself (0 = none). Default: cores − 1, at least 1 (0 under NODE_ENV=test). */
+  runnerThreads: number;
 }
 
 export class ConfigError extends Error {
@@ -115,6 +120,8 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     AUTH_RATE_WINDOW_MS: int(15 * 60 * 1000, 1, 24 * 3600 * 1000),
     STATIC_DIR: str('dist/noisewright/browser'),
     TRUST_PROXY_HOPS: int(0, 0, 10),
+    QUEUE_URL: str('').pipe(z.union([z.literal(''), z.string().regex(/^rediss?:\/\/\S+$/, 'use a Redis URL such as redis://127.0.0.1:6379')])),
+    RUNNER_THREADS: int(nodeEnv === 'test' ? 0 : Math.max(1, availableParallelism() - 1), 0, 256),
   });
   const parsed = schema.safeParse(env);
   if (!parsed.success) {
@@ -166,5 +173,7 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     authRateLimit: { max: e.AUTH_RATE_LIMIT, windowMs: e.AUTH_RATE_WINDOW_MS },
     staticDir: e.STATIC_DIR,
     trustProxyHops: e.TRUST_PROXY_HOPS,
+    queueUrl: e.QUEUE_URL || null,
+    runnerThreads: e.RUNNER_THREADS,
   };
 }

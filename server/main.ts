@@ -31,6 +31,11 @@ console.log(`Database: ${running.config.databasePath}`);
 if (running.mailbox) {
   console.log(`Mail stand-in on ${running.config.smtp.host}:${running.config.smtp.port}; admins read captured mail on the admin page.`);
 }
+console.log(
+  running.runnerThreads > 0
+    ? `Runner threads: ${running.runnerThreads} (queue: ${running.config.queueUrl ? 'BullMQ on Redis' : 'embedded'}).`
+    : `No runner threads in this server (RUNNER_THREADS=${running.config.runnerThreads}); runs sent to runners wait for \`npm run runner\`.`,
+);
 if (running.config.devMode && running.config.seedDemo) {
   console.log(`Demo sign-in: ${running.config.demoEmail} / ${running.config.demoPassword}${running.seeded ? ' (demo data created)' : ''}`);
 }

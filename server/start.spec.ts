@@ -21,6 +21,7 @@ beforeAll(() => {
     BCRYPT_COST: '4',
     DEMO_PASSWORD: 'harbour-demo-pass',
     STATIC_DIR: join(dir, 'no-client'),
+    RUNNER_THREADS: '0',
   });
 });
 afterAll(async () => {

@@ -1,5 +1,6 @@
 /**
- * Starts everything: database + migrations, demo seed, the local SMTP stand-in, the HTTP server.
+ * Starts everything: database + migrations, demo seed, the local SMTP stand-in, the run queue (embedded or
+ * BullMQ), the HTTP server, then the embedded runner threads (RUNNER_THREADS; 0 = none).
  * Port 0 (HTTP or SMTP) picks a free port; end-to-end tests rely on that.
  */
 import { createServer, type Server } from 'node:http';
@@ -11,6 +12,10 @@ import { openDatabase, type Orm } from './db/orm';
 import { startMailCapture, type MailCapture } from './modules/mail/mail-capture-server';
 import { Mailbox } from './modules/mail/mailbox';
 import { smtpMailer, type Mailer } from './modules/mail/mailer';
+import { startEmbeddedRunnerThreads } from './modules/runners/embedded-threads';
+import { createRunQueue } from './modules/runners/queue/create-run-queue';
+import { RunEventBus } from './modules/runners/run-events';
+import { ensureQueuedJobs, prepareEmbeddedRunner } from './modules/runners/runner-startup';
 import { seedDemoIfEmpty } from './seeders/demo-seed';
 
 export interface RunningServer {
@@ -24,8 +29,13 @@ export interface RunningServer {
   orm: Orm;
   /** Whether this start created the demo data. */
   seeded: boolean;
+  /** Embedded runner threads started (0 when RUNNER_THREADS=0 or the runner program is missing). */
+  runnerThreads: number;
   close(): Promise<void>;
 }
+
+/** How often the BullMQ back-end checks that every waiting runner run has a job. */
+const QUEUE_CHECK_MS = 30_000;
 
 export async function startServer(input: Config, options: { clock?: Clock } = {}): Promise<RunningServer> {
   const clock = options.clock ?? systemClock;
@@ -60,6 +70,17 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
     });
     cleanups.push(() => mailer.close());
 
+    const runQueue = createRunQueue(config);
+    cleanups.push(() => runQueue.close());
+    const runEvents = new RunEventBus();
+    const embedded = await prepareEmbeddedRunner(orm, clock);
+    if (runQueue.backend === 'bullmq') {
+      await ensureQueuedJobs(orm, runQueue);
+      const timer = setInterval(() => void ensureQueuedJobs(orm, runQueue).catch((error: unknown) => console.error(error)), QUEUE_CHECK_MS);
+      timer.unref();
+      cleanups.push(() => clearInterval(timer));
+    }
+
     const server: Server = createServer();
     await new Promise<void>((done, fail) => {
       server.once('error', fail);
@@ -81,8 +102,19 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
     if (!config.publicUrlSet && config.port === 0) config = { ...config, publicUrl: url };
     config = { ...config, port };
 
-    server.on('request', createApp(config, { orm, mailer, mailbox, clock }));
-    return { url, port, config, mailbox, orm, seeded, close };
+    server.on('request', createApp(config, { orm, mailer, mailbox, clock, runQueue, runEvents }));
+
+    let runnerThreads = 0;
+    if (config.runnerThreads > 0) {
+      const threads = await startEmbeddedRunnerThreads({
+        serverUrl: url, token: embedded.token, threads: config.runnerThreads, name: 'This server', ...(config.queueUrl ? { queueUrl: config.queueUrl } : {}),
+      });
+      if (threads) {
+        cleanups.push(() => threads.stop());
+        runnerThreads = config.runnerThreads;
+      }
+    }
+    return { url, port, config, mailbox, orm, seeded, runnerThreads, close };
   } catch (error) {
     await close();
     throw error;

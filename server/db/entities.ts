@@ -15,6 +15,7 @@ import { MembershipSchema } from '../modules/benches/membership.entity';
 import { InvitationSchema } from '../modules/invitations/invitation.entity';
 import { CheckpointSchema, MetricPointSchema, RunSchema } from '../modules/runs/run-entities';
 import { UserSchema } from '../modules/users/user.entity';
+import { RunnerSchema } from '../modules/runners/runner.entity';
 
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export const entities: EntitySchema<any, never>[] = [
@@ -32,4 +33,5 @@ export const entities: EntitySchema<any, never>[] = [
   GridSchema,
   EvaluationSchema,
   ReportSchema,
+  RunnerSchema,
 ];

@@ -23,6 +23,9 @@ import { invitationLinkRoutes } from './invitations/invitation-links.routes';
 import { invitationRoutes } from './invitations/invitations.routes';
 import { metaRoutes } from './meta/meta.routes';
 import { runRoutes } from './runs/runs.routes';
+import { runnerBenchRoutes } from './runners/runner-bench.routes';
+import { runnerJobRoutes } from './runners/runner-jobs.routes';
+import { runnerAdminRoutes } from './runners/runners.routes';
 
 export interface ServerModule {
   name: string;
@@ -72,4 +75,12 @@ export const serverModules: ServerModule[] = [
   },
   { name: 'reports', benchRoutes: [{ path: '/reports', router: reportRoutes }] },
   { name: 'admin', routes: [{ path: '/admin', signedIn: true, router: adminRoutes }] },
+  {
+    name: 'runners',
+    routes: [
+      { path: '/runners', signedIn: true, router: runnerAdminRoutes },
+      { path: '/runner', signedIn: false, router: runnerJobRoutes },
+    ],
+    benchRoutes: [{ path: '/', router: runnerBenchRoutes }],
+  },
 ];

@@ -78,3 +78,11 @@ benchRouteTable.push(
   { method: 'post', path: () => '/reports', minRole: 'member', body: { kind: 'grid', title: 'Sizes', sourceIds: [madeUpId] } },
   { method: 'delete', path: () => `/reports/${madeUpId}`, minRole: 'member' },
 );
+
+// Runners (server/modules/runners). `GET /events` is a never-ending stream, so run-events.spec.ts checks its
+// access (401 / 404) instead of this table; the per-run stream looks the run up first, so a made-up id gets 404.
+benchRouteTable.push(
+  { method: 'get', path: () => '/runner-status', minRole: 'viewer' },
+  { method: 'post', path: () => `/runs/${madeUpId}/control`, minRole: 'member', body: { action: 'pause' } },
+  { method: 'get', path: () => `/runs/${madeUpId}/events`, minRole: 'viewer', allowedStatus: 404 },
+);

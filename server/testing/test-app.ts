@@ -17,6 +17,9 @@ import { MembershipRepository } from '../modules/benches/membership.repository';
 import { Mailbox } from '../modules/mail/mailbox';
 import { mailboxMailer } from '../modules/mail/mailer';
 import { UserRepository } from '../modules/users/user.repository';
+import { createRunQueue } from '../modules/runners/queue/create-run-queue';
+import type { RunQueue } from '../modules/runners/queue/run-queue';
+import { RunEventBus } from '../modules/runners/run-events';
 
 export const TEST_PASSWORD = 'correct horse 42';
 
@@ -27,6 +30,9 @@ export interface TestApp {
   clock: ManualClock;
   mailbox: Mailbox;
   dir: string;
+  /** The run queue (embedded, or BullMQ when the env sets QUEUE_URL) and the event bus of server-sent events. */
+  runQueue: RunQueue;
+  runEvents: RunEventBus;
   close(): Promise<void>;
 }
 
@@ -53,12 +59,16 @@ export async function createTestApp(env: Record<string, string> = {}): Promise<T
   const clock = new ManualClock('2026-03-01T09:00:00Z');
   const mailbox = new Mailbox();
   const errors: unknown[] = [];
+  const runQueue = createRunQueue(config);
+  const runEvents = new RunEventBus();
   const app = createApp(config, {
     orm,
     mailer: mailboxMailer(mailbox, config.mailFrom),
     mailbox,
     clock,
     logError: (error) => errors.push(error),
+    runQueue,
+    runEvents,
   });
   return {
     app,
@@ -67,7 +77,10 @@ export async function createTestApp(env: Record<string, string> = {}): Promise<T
     clock,
     mailbox,
     dir,
+    runQueue,
+    runEvents,
     async close() {
+      await runQueue.close();
       await orm.close(true);
       rmSync(dir, { recursive: true, force: true });
     },
@@ -86,7 +99,7 @@ export async function countRows(t: TestApp, table: string): Promise<number> {
   return Number(rows[0]!.n);
 }
 
-export const DATA_TABLES = ['users', 'benches', 'memberships', 'invitations', 'password_reset_tokens', 'activity_events', 'runs', 'metric_points', 'checkpoints', 'grids', 'evaluations', 'reports'];
+export const DATA_TABLES = ['users', 'benches', 'memberships', 'invitations', 'password_reset_tokens', 'activity_events', 'runs', 'metric_points', 'checkpoints', 'grids', 'evaluations', 'reports', 'runners'];
 
 export async function countAllRows(t: TestApp): Promise<Record<string, number>> {
   const counts: Record<string, number> = {};

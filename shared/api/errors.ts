@@ -48,6 +48,14 @@ export const ErrorCode = {
   RateLimited: 'RATE_LIMITED',
   /** 500: a fault on the server. */
   Internal: 'INTERNAL_ERROR',
+  /** 401: the runner token was revoked by an admin (runner routes, see shared/api/runner-jobs.ts). */
+  RunnerRevoked: 'RUNNER_REVOKED',
+  /** 409: the run is not held by this runner (held by another, or by none). */
+  RunNotHeld: 'RUN_NOT_HELD',
+  /** 409 on a runner's claim: another runner's lease on the run is fresh; retry after `error.retryAfterSeconds`. */
+  RunHeld: 'RUN_HELD',
+  /** 409 on a runner's claim: the run no longer waits for a runner. */
+  RunNotQueued: 'RUN_NOT_QUEUED',
 } as const;
 
 export type ErrorCode = (typeof ErrorCode)[keyof typeof ErrorCode];

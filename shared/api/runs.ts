@@ -16,12 +16,14 @@ export type RunStatus = (typeof RUN_STATUSES)[number];
 /**
  * The status machine. A run may go from a status to the ones listed; staying in the same status is
  * always allowed (a progress update). `training → queued` puts a run back in line (e.g. the tab that
- * trained it was closed); the three end states can be resumed from a checkpoint.
+ * trained it was closed); the three end states can be resumed from a checkpoint. The server answers a pause
+ * or stop that arrives after a run ended as a no-op (200 with the unchanged run and a `message`), not 409.
  */
 export const RUN_TRANSITIONS: Readonly<Record<RunStatus, readonly RunStatus[]>> = {
   queued: ['training', 'stopped', 'failed'],
   training: ['paused', 'finished', 'stopped', 'failed', 'queued'],
-  paused: ['training', 'queued', 'stopped', 'failed'],
+  // paused → finished: the trainer reached its last step while a pause was on its way.
+  paused: ['training', 'queued', 'stopped', 'failed', 'finished'],
   finished: ['queued', 'training'],
   stopped: ['queued', 'training'],
   failed: ['queued', 'training'],

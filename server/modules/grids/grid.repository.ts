@@ -51,7 +51,7 @@ export class GridRepository {
       progress,
       done: runs.every((r) => !ACTIVE_RUN_STATUSES.includes(r.status)),
       canDelete: canDeleteGrid(grid, user, role),
-      placement: 'tab',
+      placement: runs.some((r) => r.placement === 'runners') ? 'runners' : 'tab',
     };
   }
 

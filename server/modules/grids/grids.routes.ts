@@ -59,6 +59,7 @@ export function gridRoutes(ctx: AppContext): Router {
     const grid = await createGridWithRuns(ctx, {
       bench, corpus, me, name: body.name, kind: 'grid', family: body.family, axes: body.axes, baseSettings: body.baseSettings,
       figure: body.figure, budgetSteps: null, runs: plan.cells.map((c) => ({ coords: c.coords, label: c.label, family: body.family, settings: c.settings })),
+      placement: body.placement,
     });
     res.status(201).json(grids().dto(grid, await grids().runsOf(grid), me, role));
   });

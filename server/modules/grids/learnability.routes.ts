@@ -35,6 +35,7 @@ export function learnabilityRoutes(ctx: AppContext): Router {
       axes: [{ key: 'model', values: cells.map((c) => c.model) }],
       baseSettings: { budgetSteps: body.budgetSteps, seed: body.seed }, figure: 'bestValidationBitsPerChar', budgetSteps: body.budgetSteps,
       runs: cells.map((c, i) => ({ coords: [i], label: c.model, family: c.family, settings: c.settings })),
+      placement: body.placement,
     });
     const repo = new GridRepository(ctx.orm.em);
     res.status(201).json(repo.dto(grid, await repo.runsOf(grid), me, role));

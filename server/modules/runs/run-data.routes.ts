@@ -60,6 +60,7 @@ export function runDataRoutes(ctx: AppContext): Router {
     }
     const body = parseBody(metricBatchSchema, req.body);
     await new MetricRepository(ctx.orm.em).append(run, body.points);
+    ctx.runEvents.publish({ name: 'metrics', benchId: run.bench.id, runId: run.id, data: { points: body.points } });
     res.status(201).json({ stored: body.points.length });
   });
 

@@ -30,11 +30,14 @@ const url = () => `/api/benches/${f.benchId}/runs/${run.id}`;
 const DESIGN: Record<RunStatus, RunStatus[]> = {
   queued: ['training', 'stopped', 'failed'],
   training: ['paused', 'finished', 'stopped', 'failed', 'queued'],
-  paused: ['training', 'queued', 'stopped', 'failed'],
+  paused: ['training', 'queued', 'stopped', 'failed', 'finished'],
   finished: ['queued', 'training'],
   stopped: ['queued', 'training'],
   failed: ['queued', 'training'],
 };
+const ENDED: RunStatus[] = ['finished', 'stopped', 'failed'];
+/** A pause or stop after the run ended: answered 200 with the unchanged run and a message (designed, not derived). */
+const isLate = (from: RunStatus, to: RunStatus) => ENDED.includes(from) && (to === 'paused' || to === 'stopped') && from !== to;
 
 const pairs = RUN_STATUSES.flatMap((from) => RUN_STATUSES.map((to) => [from, to] as const));
 
@@ -44,12 +47,40 @@ describe('status machine', () => {
     const body = to === 'failed' ? { status: to, statusReason: 'The loss became NaN at step 12.' } : { status: to };
     const res = await api().patch(url()).set(bearer(f.tokens.member)).send(body);
     const allowed = from === to || DESIGN[from].includes(to);
-    expect(res.status).toBe(allowed ? 200 : 409);
+    const late = isLate(from, to);
+    expect(res.status).toBe(allowed || late ? 200 : 409);
     const stored: { status: string }[] = await t.orm.em.fork().getConnection().execute('select status from runs where id = ?', [run.id]);
     expect(stored[0]!.status).toBe(allowed ? to : from);
-    if (!allowed) {
+    if (late) {
+      expect(res.body.status).toBe(from);
+      expect(res.body.message).toMatch(/changed nothing/);
+    }
+    if (!allowed && !late) {
       expect(res.body.error.code).toBe(ErrorCode.RunStatusConflict);
       expect(res.body.error.message).toContain(`A run that is ${from} cannot become ${to}`);
+    }
+  });
+
+  it('keeps a finished run finished when a pause arrives after the finish (one after the other, and at once)', async () => {
+    await setStatusDirectly(t, run.id, 'training');
+    const finish = await api().patch(url()).set(bearer(f.tokens.member)).send({ status: 'finished', stepsDone: 300 });
+    expect(finish.status).toBe(200);
+    const late = await api().patch(url()).set(bearer(f.tokens.member)).send({ status: 'paused', stepsDone: 299 });
+    expect(late.status).toBe(200);
+    expect(late.body).toMatchObject({ status: 'finished', stepsDone: 300 });
+    expect(late.body.message).toContain('had already finished at step 300');
+
+    // Both requests in flight together: whichever the server takes first, the run ends finished at step 300.
+    for (let i = 0; i < 5; i++) {
+      await setStatusDirectly(t, run.id, 'training');
+      const [done, pause] = await Promise.all([
+        api().patch(url()).set(bearer(f.tokens.member)).send({ status: 'finished', stepsDone: 300 }),
+        api().patch(url()).set(bearer(f.tokens.member)).send({ status: 'paused' }),
+      ]);
+      expect(done.status).toBe(200);
+      expect(pause.status).toBe(200);
+      const stored: { status: string; steps_done: number }[] = await t.orm.em.fork().getConnection().execute('select status, steps_done from runs where id = ?', [run.id]);
+      expect(stored[0]).toEqual({ status: 'finished', steps_done: 300 });
     }
   });
 

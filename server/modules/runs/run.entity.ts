@@ -1,9 +1,11 @@
 import { EntitySchema, OptionalProps } from '@mikro-orm/core';
 import { randomUUID } from 'node:crypto';
+import type { RunLiveProgress, RunPlacement } from '../../../shared/api/runners';
 import type { RunFamily, RunSettings, RunStatus, RunSummary } from '../../../shared/api/runs';
 import { Bench } from '../benches/bench.entity';
 import { Corpus } from '../corpora/corpus.entity';
 import { Grid } from '../grids/grid.entity';
+import { Runner } from '../runners/runner.entity';
 import { User } from '../users/user.entity';
 
 /**
@@ -13,7 +15,8 @@ import { User } from '../users/user.entity';
  * bound so the list can sort by it.
  */
 export class Run {
-  [OptionalProps]?: 'id' | 'statusReason' | 'summary' | 'stepsDone' | 'archived' | 'bestBoundBitsPerChar' | 'createdAt' | 'updatedAt' | 'grid' | 'gridCell';
+  [OptionalProps]?: 'id' | 'statusReason' | 'summary' | 'stepsDone' | 'archived' | 'bestBoundBitsPerChar' | 'createdAt' | 'updatedAt' | 'grid' | 'gridCell'
+    | 'placement' | 'runner' | 'leaseExpiresAt' | 'live' | 'requestedControl';
   id: string = randomUUID();
   bench!: Bench;
   corpus!: Corpus | null;
@@ -31,6 +34,15 @@ export class Run {
   /** The grid or learnability check this run is a cell of (server/modules/grids), with its coordinates. */
   grid: Grid | null = null;
   gridCell: number[] | null = null;
+  /** Where it trains (shared/api/runners.ts); runner runs are queued on the server (server/modules/runners). */
+  placement: RunPlacement = 'tab';
+  /** The runner holding it, until `leaseExpiresAt` (renewed by its heartbeats and progress calls). */
+  runner: Runner | null = null;
+  leaseExpiresAt: Date | null = null;
+  /** Latest progress a runner reported. */
+  live: RunLiveProgress | null = null;
+  /** A pause or stop asked for while a runner holds the run; the runner sees it in its next progress answer. */
+  requestedControl: 'pause' | 'stop' | null = null;
   createdAt: Date = new Date();
   updatedAt: Date = new Date();
 }
@@ -38,7 +50,7 @@ export class Run {
 export const RunSchema = new EntitySchema<Run>({
   class: Run,
   tableName: 'runs',
-  indexes: [{ properties: ['bench', 'createdAt'] }, { properties: ['bench', 'status'] }],
+  indexes: [{ properties: ['bench', 'createdAt'] }, { properties: ['bench', 'status'] }, { properties: ['placement', 'status'] }],
   properties: {
     id: { type: 'uuid', primary: true },
     bench: { kind: 'm:1', entity: () => Bench, deleteRule: 'cascade' },
@@ -56,6 +68,11 @@ export const RunSchema = new EntitySchema<Run>({
     bestBoundBitsPerChar: { type: 'double', nullable: true },
     grid: { kind: 'm:1', entity: () => Grid, nullable: true, deleteRule: 'set null' },
     gridCell: { type: 'json', nullable: true },
+    placement: { type: 'string', length: 8, default: 'tab' },
+    runner: { kind: 'm:1', entity: () => Runner, nullable: true, deleteRule: 'set null' },
+    leaseExpiresAt: { type: 'datetime', nullable: true },
+    live: { type: 'json', nullable: true },
+    requestedControl: { type: 'string', length: 8, nullable: true },
     createdAt: { type: 'datetime' },
     updatedAt: { type: 'datetime', onUpdate: () => new Date() },
   },

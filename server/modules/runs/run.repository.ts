@@ -1,5 +1,6 @@
 import type { EntityManager, FilterQuery, QueryOrderMap } from '@mikro-orm/core';
 import type { RunDto, RunFamily, RunPage, RunSettings, RunStatus, listRunsQuerySchema } from '../../../shared/api/runs';
+import type { RunPlacement } from '../../../shared/api/runners';
 import { roleAtLeast, type Role } from '../../../shared/api/types';
 import type { z } from 'zod';
 import type { Bench } from '../benches/bench.entity';
@@ -41,10 +42,9 @@ export function toRunDto(run: Run, checkpointCount: number, canControl: boolean)
     archived: run.archived,
     checkpointCount,
     canControl,
-    // Runner placement arrives with the runners module (shared/api/runners.ts); until then every run trains in a tab.
-    placement: 'tab',
-    runner: null,
-    live: null,
+    placement: run.placement,
+    runner: run.runner ? { id: run.runner.id, name: run.runner.name ?? 'runner' } : null,
+    live: run.placement === 'runners' ? run.live : null,
     createdAt: run.createdAt.toISOString(),
     updatedAt: run.updatedAt.toISOString(),
   };
@@ -55,7 +55,7 @@ export class RunRepository {
 
   /** The run if it belongs to the bench (corpus and creator loaded). */
   find(bench: Bench, id: string): Promise<Run | null> {
-    return this.em.findOne(Run, { id, bench }, { populate: ['corpus', 'createdBy'] });
+    return this.em.findOne(Run, { id, bench }, { populate: ['corpus', 'createdBy', 'runner'] });
   }
 
   create(data: {
@@ -68,6 +68,7 @@ export class RunRepository {
     alphabet: string[];
     status: RunStatus;
     stepsDone?: number;
+    placement?: RunPlacement;
     at: Date;
   }): Run {
     return this.em.create(Run, {
@@ -80,6 +81,7 @@ export class RunRepository {
       alphabet: data.alphabet,
       status: data.status,
       stepsDone: data.stepsDone ?? 0,
+      placement: data.placement ?? 'tab',
       createdAt: data.at,
       updatedAt: data.at,
     });
@@ -97,7 +99,7 @@ export class RunRepository {
       orderBy,
       limit: query.limit,
       offset: query.offset,
-      populate: ['corpus', 'createdBy'],
+      populate: ['corpus', 'createdBy', 'runner'],
     });
     const counts = await this.checkpointCounts(runs.map((r) => r.id));
     return { items: runs.map((r) => toRunDto(r, counts.get(r.id) ?? 0, canControlRun(r, user, role))), total };

@@ -1,0 +1,125 @@
+/**
+ * /api/runner/*: the routes runner programs (and the server's embedded runner threads) call, with a runner
+ * token. Contract: shared/api/runner-jobs.ts and DEVELOPERS.md "Runners". A runner reads and writes only
+ * the runs it holds (409 RUN_NOT_HELD otherwise) and only their corpus.
+ */
+import { Router } from 'express';
+import { ErrorCode } from '../../../shared/api/errors';
+import {
+  runnerCheckpointQuerySchema,
+  runnerClaimSchema,
+  runnerFinishSchema,
+  runnerHeartbeatSchema,
+  runnerMetricsSchema,
+  runnerProgressSchema,
+  type RunHeldErrorBody,
+} from '../../../shared/api/runner-jobs';
+import { MAX_METRIC_POINTS_PER_REQUEST, type TrainingSet } from '../../../shared/api/runs';
+import { splitOf } from '../../../shared/data/split';
+import type { AppContext } from '../../app-context';
+import { HttpError, notFound } from '../../http-error';
+import { parseBody, parseQuery } from '../../middleware/validate';
+import { checkFitsRun, readCheckpoint } from '../runs/checkpoint-check';
+import { checkpointBytes, rawCheckpointBody } from '../runs/checkpoint-upload';
+import { Checkpoint } from '../runs/checkpoint.entity';
+import { CheckpointRepository, toCheckpointDto } from '../runs/checkpoint.repository';
+import { MetricRepository } from '../runs/metric.repository';
+import { corpusSplit } from '../runs/run-settings';
+import { currentRunner, requireRunner } from './runner-auth';
+import { RunHeldError, RunnerJobService } from './runner-job.service';
+
+export function runnerJobRoutes(ctx: AppContext): Router {
+  const router = Router();
+  router.use(requireRunner(ctx));
+  const jobs = () => new RunnerJobService(ctx);
+
+  router.post('/heartbeat', async (req, res) => {
+    const body = parseBody(runnerHeartbeatSchema, req.body);
+    res.json({ controls: await jobs().heartbeat(currentRunner(req), body) });
+  });
+
+  router.post('/claim', async (req, res) => {
+    const { runId } = parseBody(runnerClaimSchema, req.body);
+    try {
+      const job = await jobs().claim(currentRunner(req), runId);
+      if (!job) {
+        res.status(204).end();
+        return;
+      }
+      res.json(job);
+    } catch (error) {
+      if (!(error instanceof RunHeldError)) throw error;
+      const body: RunHeldErrorBody = { error: { code: 'RUN_HELD', message: error.message, retryAfterSeconds: error.retryAfterSeconds } };
+      res.status(409).set('Retry-After', String(error.retryAfterSeconds)).json(body);
+    }
+  });
+
+  router.get('/jobs/:runId/training-set', async (req, res) => {
+    const run = await jobs().held(currentRunner(req), String(req.params['runId']));
+    const corpus = run.corpus;
+    if (!corpus) throw notFound('The corpus of this run');
+    const rows: { word: string; count: number; split: TrainingSet['splits'][number] }[] = await ctx.orm.em
+      .getConnection()
+      .execute('select word, `count`, split from corpus_words where corpus_id = ? order by `count` desc, word asc', [corpus.id]);
+    const split = run.settings.split ?? corpusSplit(corpus);
+    const own = JSON.stringify(split) === JSON.stringify(corpusSplit(corpus));
+    const body: TrainingSet = {
+      alphabet: run.alphabet,
+      words: rows.map((r) => r.word),
+      counts: rows.map((r) => Number(r.count)),
+      splits: rows.map((r) => (own ? r.split : splitOf(r.word, split.seed, split.shares))),
+    };
+    res.json(body);
+  });
+
+  router.get('/jobs/:runId/checkpoint', async (req, res) => {
+    const run = await jobs().held(currentRunner(req), String(req.params['runId']));
+    const latest = await ctx.orm.em.findOne(Checkpoint, { run }, { orderBy: { createdAt: 'desc', step: 'desc', id: 'asc' }, populate: ['bytes'] });
+    if (!latest) throw notFound(`A checkpoint of "${run.name}"`);
+    res.type('application/octet-stream');
+    res.set('X-Checkpoint-Step', String(latest.step));
+    res.set('Content-Length', String(latest.bytes.length));
+    res.end(latest.bytes);
+  });
+
+  router.post('/jobs/:runId/progress', async (req, res) => {
+    const body = parseBody(runnerProgressSchema, req.body);
+    res.json({ action: await jobs().progress(currentRunner(req), String(req.params['runId']), body) });
+  });
+
+  router.post('/jobs/:runId/metrics', async (req, res) => {
+    const run = await jobs().held(currentRunner(req), String(req.params['runId']));
+    const points = (req.body as { points?: unknown } | undefined)?.points;
+    if (Array.isArray(points) && points.length > MAX_METRIC_POINTS_PER_REQUEST) {
+      throw new HttpError(413, ErrorCode.PayloadTooLarge, `This batch has ${points.length} points; send at most ${MAX_METRIC_POINTS_PER_REQUEST} per request.`);
+    }
+    const body = parseBody(runnerMetricsSchema, req.body);
+    await new MetricRepository(ctx.orm.em).append(run, body.points);
+    ctx.runEvents.publish({ name: 'metrics', benchId: run.bench.id, runId: run.id, data: { points: body.points } });
+    res.status(201).json({ stored: body.points.length });
+  });
+
+  router.post('/jobs/:runId/checkpoints', rawCheckpointBody(ctx.config.maxCheckpointBytes), async (req, res) => {
+    const run = await jobs().held(currentRunner(req), String(req.params['runId']));
+    const query = parseQuery(runnerCheckpointQuerySchema, req.query);
+    const bytes = checkpointBytes(req);
+    const found = readCheckpoint(bytes);
+    checkFitsRun(found, run);
+    const checkpoints = new CheckpointRepository(ctx.orm.em);
+    const saved = checkpoints.create({
+      run, step: found.checkpoint.step, boundBitsPerChar: query.boundBitsPerChar ?? null, reason: query.reason,
+      formatVersion: found.checkpoint.formatVersion, bytes, at: ctx.clock.now(),
+    });
+    await ctx.orm.em.flush();
+    if (query.reason === 'auto') await checkpoints.pruneAutomatic(run);
+    res.status(201).json(toCheckpointDto(saved));
+  });
+
+  router.post('/jobs/:runId/finish', async (req, res) => {
+    const body = parseBody(runnerFinishSchema, req.body);
+    await jobs().finish(currentRunner(req), String(req.params['runId']), body);
+    res.json({ ok: true });
+  });
+
+  return router;
+}
