@@ -25,10 +25,14 @@ const SETTINGS = {
   training: { steps: STEPS, batchSize: 32, samples: 4, learningRate: 0.01, clipNorm: 5, evalEvery: 50, evalSamples: 8, checkpointEvery: 50, seed: 1 },
 };
 
-async function gridWallSeconds(base: string, lab: Lab, token: string, threads: number, round: number): Promise<number> {
+interface Measure { wallSeconds: number; cpuSeconds: number }
+
+/** Wall time of one grid, and the CPU time this process (server, runner and its threads) used meanwhile. */
+async function measureGrid(base: string, lab: Lab, token: string, threads: number, round: number): Promise<Measure> {
   const runner = startRunnerThreads({ serverUrl: base, token, threads, name: `bench-${threads}`, output: quiet });
   try {
     const t0 = performance.now();
+    const cpu0 = process.cpuUsage();
     const grid = await api<GridDto>(base, `/benches/${lab.benchId}/grids`, lab.token, json({
       name: `bench ${threads} thread(s), round ${round}`, corpusId: lab.corpusId, family: 'ssm', baseSettings: SETTINGS,
       axes: [{ key: 'training.seed', values: Array.from({ length: CELLS }, (_, i) => 100 * round + threads * 10 + i) }], placement: 'runners',
@@ -40,7 +44,8 @@ async function gridWallSeconds(base: string, lab: Lab, token: string, threads: n
       if (failed) throw new Error(`Run ${failed.name} failed: ${failed.statusReason}`);
       return runs.length === CELLS && runs.every((r) => r.status === 'finished');
     }, 30 * 60_000, 200);
-    return (performance.now() - t0) / 1000;
+    const cpu = process.cpuUsage(cpu0);
+    return { wallSeconds: (performance.now() - t0) / 1000, cpuSeconds: (cpu.user + cpu.system) / 1e6 };
   } finally {
     await runner.stop();
   }
@@ -52,11 +57,14 @@ try {
   const token = await runnerToken(server.url, lab, 'bench');
   const loadBefore = loadavg();
   const times: Record<1 | 2, number[]> = { 1: [], 2: [] };
+  const cores: Record<1 | 2, number[]> = { 1: [], 2: [] };
   for (let round = 0; round < ROUNDS; round++) {
     for (const threads of round % 2 === 0 ? [1, 2] as const : [2, 1] as const) {
-      const s = await gridWallSeconds(server.url, lab, token, threads, round);
-      times[threads].push(s);
-      process.stdout.write(`round ${round + 1}: ${threads} thread(s): ${s.toFixed(1)} s for ${CELLS} runs of ${STEPS} steps\n`);
+      const m = await measureGrid(server.url, lab, token, threads, round);
+      times[threads].push(m.wallSeconds);
+      cores[threads].push(m.cpuSeconds / m.wallSeconds);
+      process.stdout.write(`round ${round + 1}: ${threads} thread(s): ${m.wallSeconds.toFixed(1)} s for ${CELLS} runs of ${STEPS} steps, ` +
+        `${(m.cpuSeconds / m.wallSeconds).toFixed(2)} cores busy on average\n`);
     }
   }
   const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor((xs.length - 1) / 2)] as number;
@@ -69,9 +77,13 @@ try {
     loadAverageBefore: loadBefore.map((x) => Number(x.toFixed(2))), loadAverageAfter: loadavg().map((x) => Number(x.toFixed(2))),
     wallSeconds: { oneThread: times[1].map((x) => Number(x.toFixed(2))), twoThreads: times[2].map((x) => Number(x.toFixed(2))) },
     medianWallSeconds: { oneThread: Number(one.toFixed(2)), twoThreads: Number(two.toFixed(2)) },
+    /** CPU seconds of this process per wall second: how many cores the runs actually got. */
+    coresUsed: { oneThread: cores[1].map((x) => Number(x.toFixed(2))), twoThreads: cores[2].map((x) => Number(x.toFixed(2))) },
     speedUp: Number((one / two).toFixed(2)),
     target: 1.7,
-    note: 'Wall time from creating the grid until its last run finished, thread start-up included; other processes shared the machine (see the load averages).',
+    note: 'Wall time from creating the grid until its last run finished, thread start-up included. Other processes shared the ' +
+      'machine (see the load averages); when they keep both cores busy, a second thread gets no more CPU (coresUsed) and the ' +
+      'speed-up cannot show.',
   };
   mkdirSync(join(root, 'bench', 'results'), { recursive: true });
   writeFileSync(join(root, 'bench', 'results', 'runners.json'), `${JSON.stringify(result, null, 2)}\n`);
