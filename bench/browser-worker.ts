@@ -14,7 +14,7 @@ import { chromium } from 'playwright-core';
 import { splitCorpus, DEFAULT_SPLIT_SHARES } from '../shared/data/split';
 import { buildAlphabet } from '../shared/data/encode';
 import { initNodeBackend } from '../shared/node/tf-node';
-import { createEngine } from '../src/app/workers/run-engines';
+import { createEngine } from '../shared/training/run-engines';
 import type { TrainerSettings, TrainingSet } from '../src/app/workers/trainer-api';
 
 const STEPS = Number(process.env['BENCH_STEPS'] ?? 20);
@@ -44,7 +44,7 @@ interface Timing { backend: string; simd: boolean; threads: number; msPerStep: n
 const WORKER_SOURCE = `
 import '@tensorflow/tfjs-core/dist/register_all_gradients';
 import { setUpWorkerBackend } from './src/app/workers/worker-backend';
-import { createEngine } from './src/app/workers/run-engines';
+import { createEngine } from './shared/training/run-engines';
 self.onmessage = async (e) => {
   const { settings, set, steps, warmup } = e.data;
   const report = await setUpWorkerBackend(); // the app's workers' own set-up

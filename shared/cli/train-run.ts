@@ -1,19 +1,12 @@
 /** `npm run train` as a function: load the corpus, build or resume the model, train, save checkpoint + metrics. */
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { encodeBatch } from '../data/encode';
-import { createBatcher } from '../data/batcher';
-import { createRng } from '../data/random';
-import { gruLogProbs, heldOutFigures, ngramLogProbs } from '../eval/baseline-figures';
-import { heldOutSample } from '../eval/evaluation-report';
-import { tightEstimate } from '../eval/tight-estimate';
-import { decodeCheckpoint, encodeCheckpoint, CHECKPOINT_FORMAT_VERSION, type Checkpoint } from '../model/checkpoint';
-import { GruLanguageModel, GruTrainer, type GruSettings } from '../model/gru-lm';
-import { KneserNeyModel } from '../model/ngram-kn';
-import { modelFromCheckpoint, restoreTrainer, ssmCheckpoint } from '../model/ssm-checkpoint';
-import { StateSpaceModel } from '../model/ssm';
-import { SsmTrainer } from '../model/trainer';
+import { decodeCheckpoint, encodeCheckpoint } from '../model/checkpoint';
+import { toTrainerError } from '../model/trainer-errors';
 import { initNodeBackend } from '../node/tf-node';
+import { createEngine, type RunEngine } from '../training/run-engines';
+import { runTrainingLoop } from '../training/training-loop';
+import type { TrainerSettings } from '../training/training-types';
 import { loadCorpus } from './corpus-file';
 import { ProgressBar, type ProgressSink } from './progress-bar';
 import type { TrainOptions } from './train-options';
@@ -38,7 +31,15 @@ export interface TrainMetrics {
 
 export interface TrainResult { checkpointPath: string; metricsPath: string; metrics: TrainMetrics }
 
-const nowIso = () => new Date().toISOString();
+/** The engine settings of the command line's options; `totalSteps` counts the steps of a resumed checkpoint too. */
+function trainerSettingsOfOptions(o: TrainOptions, totalSteps: number): TrainerSettings {
+  return {
+    family: o.model, stateSize: o.stateSize, generativeFlow: o.generativeFlow.map((l) => l.kind), inferenceFlow: o.inferenceFlow.map((l) => l.kind),
+    flowHidden: o.flowHidden, encoderSize: o.encoderSize, embeddingSize: o.embeddingSize, proposalHidden: o.proposalHidden,
+    observationHidden: o.observationHidden, samples: o.samples, batchSize: o.batchSize, steps: totalSteps, learningRate: o.learningRate,
+    clipNorm: o.clipNorm, warmupSteps: o.warmupSteps, regime: o.regime, seed: o.seed, order: o.order, discount: o.discount, evalEvery: o.evalEvery,
+  };
+}
 
 export async function runTraining(o: TrainOptions, progress: ProgressSink = process.stderr): Promise<TrainResult> {
   const backend = await initNodeBackend(o.backend);
@@ -49,7 +50,6 @@ export async function runTraining(o: TrainOptions, progress: ProgressSink = proc
   const { alphabet, parts } = data;
   if (parts.train.length === 0) throw new Error('The training split is empty; raise the train share (--split) or use a larger corpus.');
   const heldOut = parts.validation.length > 0 ? parts.validation : parts.test;
-  const valWords = heldOutSample(heldOut, 200);
   mkdirSync(o.outDir, { recursive: true });
   const checkpointPath = join(o.outDir, 'checkpoint.nwck');
   const metricsPath = join(o.outDir, 'metrics.json');
@@ -59,75 +59,43 @@ export async function runTraining(o: TrainOptions, progress: ProgressSink = proc
   let parameterCount = 0;
   let steps = 0;
   let words = 0;
-  const save = (ck: Checkpoint) => writeFileSync(checkpointPath, encodeCheckpoint(ck));
   const resumeCk = o.resume ? decodeCheckpoint(new Uint8Array(readFileSync(o.resume))) : null;
   if (resumeCk && resumeCk.family !== o.model) throw new Error(`--resume holds a ${resumeCk.family} checkpoint but --model is ${o.model}.`);
   if (resumeCk && resumeCk.alphabet.join('') !== alphabet.chars.join('')) {
     throw new Error('The corpus alphabet differs from the checkpoint\'s; resume on the corpus the run was trained on.');
   }
-
-  if (o.model === 'ngram') {
-    const model = KneserNeyModel.estimate(parts.train, alphabet, { order: o.order, ...(o.discount !== null ? { discount: o.discount } : {}) });
-    parameterCount = model.entryCount;
-    const f = heldOutFigures(valWords, ngramLogProbs(model, valWords));
-    validation.push({ step: 0, bitsPerWord: f.bitsPerWord, bitsPerChar: f.bitsPerChar, k: 0 });
-    save({ formatVersion: CHECKPOINT_FORMAT_VERSION, family: 'ngram', settings: model.toJSON(), alphabet: alphabet.chars, step: 0, seed: o.seed, weights: {}, createdAt: nowIso() });
-  } else {
-    const rng = createRng(o.seed);
-    const batcher = createBatcher(parts.train, { batchSize: o.batchSize, regime: o.regime, rng: rng.fork(`batches/${resumeCk?.step ?? 0}`) });
-    const bar = o.quiet ? null : new ProgressBar(o.steps, progress);
-    let runStep: () => { bits: number; isBound: boolean };
-    let validate: () => ValidationPoint;
-    let checkpoint: () => Checkpoint;
-    let dispose: () => void;
-    if (o.model === 'ssm') {
-      const model = resumeCk ? modelFromCheckpoint(resumeCk) : new StateSpaceModel({
-        stateSize: o.stateSize, vocabSize: alphabet.size, generativeFlow: o.generativeFlow, inferenceFlow: o.inferenceFlow,
-        flowHidden: o.flowHidden, observationHidden: o.observationHidden, embeddingSize: o.embeddingSize,
-        encoderSize: o.encoderSize, proposalHidden: o.proposalHidden,
-      }, o.seed);
-      const trainer = new SsmTrainer(model, { learningRate: o.learningRate, samples: o.samples, clipNorm: o.clipNorm, warmupSteps: o.warmupSteps });
-      if (resumeCk) restoreTrainer(trainer, resumeCk);
-      parameterCount = model.parameterCount;
-      runStep = () => { const r = trainer.step(encodeBatch(batcher.next(), alphabet)); return { bits: r.boundBitsPerChar, isBound: r.isBound }; };
-      validate = () => {
-        const e = tightEstimate(model, valWords, alphabet, { k: o.evalK, seed: o.seed });
-        return { step: trainer.stepCount, bitsPerWord: e.bitsPerWord, bitsPerChar: e.bitsPerChar, k: o.evalK };
-      };
-      checkpoint = () => ssmCheckpoint(model, { alphabet: alphabet.chars, seed: o.seed, trainer });
-      dispose = () => { trainer.dispose(); model.dispose(); };
-    } else {
-      const settings: GruSettings = resumeCk ? resumeCk.settings as GruSettings
-        : { vocabSize: alphabet.size, stateSize: o.stateSize, embedSize: o.embeddingSize, obsHidden: o.observationHidden };
-      const model = new GruLanguageModel(settings, o.seed);
-      if (resumeCk) model.setWeights(resumeCk.weights);
-      const trainer = new GruTrainer(model, { learningRate: o.learningRate, clipNorm: o.clipNorm });
-      if (resumeCk?.optimizer) trainer.setOptimizerState(resumeCk.optimizer);
-      parameterCount = model.parameterCount;
-      runStep = () => { const r = trainer.step(encodeBatch(batcher.next(), alphabet)); return { bits: r.boundBitsPerChar, isBound: true }; };
-      validate = () => {
-        const f = heldOutFigures(valWords, gruLogProbs(model, valWords, alphabet));
-        return { step: trainer.stepCount, bitsPerWord: f.bitsPerWord, bitsPerChar: f.bitsPerChar, k: 0 };
-      };
-      checkpoint = () => ({ formatVersion: CHECKPOINT_FORMAT_VERSION, family: 'gru', settings, alphabet: alphabet.chars,
-        step: trainer.stepCount, seed: o.seed, weights: model.getWeights(), optimizer: trainer.getOptimizerState(), createdAt: nowIso() });
-      dispose = () => { trainer.dispose(); model.dispose(); };
-    }
-    try {
-      for (let s = 1; s <= o.steps; s++) {
-        const r = runStep();
+  const startStep = resumeCk?.step ?? 0;
+  const settings = trainerSettingsOfOptions(o, o.model === 'ngram' ? 0 : startStep + o.steps);
+  // The shared engine and loop (shared/training), as in the browser worker and the runners; the held-out bound
+  // here uses the command line's own budget (--eval-k, 200 words).
+  let engine: RunEngine;
+  try {
+    engine = createEngine(settings, { alphabet: alphabet.chars, train: parts.train, validation: heldOut }, resumeCk,
+      { kind: 'bound', words: 200, k: o.evalK });
+  } catch (e) {
+    throw new Error(toTrainerError(e).message);
+  }
+  parameterCount = engine.parameterCount;
+  const bar = o.quiet || engine.closedForm ? null : new ProgressBar(o.steps, progress);
+  try {
+    const outcome = await runTrainingLoop(engine, settings, {
+      progressEveryMs: 0,
+      checkpointEvery: o.checkpointEvery,
+      saveCheckpoint: async () => writeFileSync(checkpointPath, encodeCheckpoint(engine.checkpoint())),
+      onStep: (step, f) => {
         steps++;
         words += o.batchSize;
-        curve.push({ step: s, boundBitsPerChar: r.bits, isBound: r.isBound });
-        bar?.update(s, r.isBound ? `cross-entropy bound ${(-r.bits).toFixed(3)} bits/char` : `warm-up figure ${(-r.bits).toFixed(3)} bits/char (not a bound)`);
-        if (o.evalEvery > 0 && s % o.evalEvery === 0 && s < o.steps) validation.push(validate());
-        if (o.checkpointEvery > 0 && s % o.checkpointEvery === 0) save(checkpoint());
-      }
-      validation.push(validate());
-      save(checkpoint());
-    } finally {
-      dispose();
-    }
+        curve.push({ step, boundBitsPerChar: -f.bitsPerChar, isBound: f.isBound });
+        bar?.update(step - startStep, f.isBound ? `cross-entropy bound ${f.bitsPerChar.toFixed(3)} bits/char` : `warm-up figure ${f.bitsPerChar.toFixed(3)} bits/char (not a bound)`);
+      },
+      onProgress: (p) => {
+        const e = p.evaluation;
+        if (e) validation.push({ step: e.step, bitsPerWord: e.validationBitsPerWord, bitsPerChar: e.validationBitsPerChar, k: o.model === 'ssm' ? o.evalK : 0 });
+      },
+    });
+    if (outcome.kind === 'failed') throw new Error(outcome.error.message);
+  } finally {
+    engine.dispose();
   }
   const seconds = (performance.now() - t0) / 1000;
   const { quiet: _q, ...options } = o;

@@ -5,6 +5,7 @@
 import { signal } from '@angular/core';
 import { Subject } from 'rxjs';
 import type { CheckpointDto, RunDto } from '../../../shared/api/runs';
+import { metricPointsOf, type CurvePoint } from '../../../shared/training/metric-points';
 import type { EngineInfo, TrainingProgress } from '../workers/trainer-api';
 
 export type LiveState = 'waiting' | 'starting' | 'training' | 'paused' | 'stopping' | 'finished' | 'stopped' | 'failed'
@@ -18,15 +19,7 @@ export const LIVE_STATE_LABELS: Record<LiveState, string> = {
 };
 
 /** Metric series names written to the server (see KNOWN_METRIC_SERIES in shared/api/runs.ts). */
-export const SERIES = {
-  train: 'train_bound',
-  validation: 'valid_bound',
-  entropy: 'obs_entropy',
-  noise: 'noise_mi',
-  speed: 'words_per_second',
-} as const;
-
-export interface CurvePoint { series: string; step: number; value: number }
+export { SERIES, type CurvePoint } from '../../../shared/training/metric-points';
 
 export class LiveRun {
   readonly state = signal<LiveState>('waiting');
@@ -59,15 +52,6 @@ export class LiveRun {
 
   /** The points a progress message adds to the curves. */
   static pointsOf(p: TrainingProgress): CurvePoint[] {
-    const out: CurvePoint[] = [];
-    if (p.totalSteps > 0) out.push({ series: SERIES.train, step: p.step, value: p.trainBitsPerChar });
-    if (p.totalSteps > 0 && p.wordsPerSecond > 0) out.push({ series: SERIES.speed, step: p.step, value: p.wordsPerSecond });
-    const e = p.evaluation;
-    if (e) {
-      out.push({ series: SERIES.validation, step: e.step, value: e.validationBitsPerChar });
-      if (e.observationEntropyBits !== null) out.push({ series: SERIES.entropy, step: e.step, value: e.observationEntropyBits });
-      if (e.noiseInformationBits !== null) out.push({ series: SERIES.noise, step: e.step, value: e.noiseInformationBits });
-    }
-    return out.filter((pt) => Number.isFinite(pt.value));
+    return metricPointsOf(p);
   }
 }

@@ -2,14 +2,16 @@
  * The real `TrainerApi` implementation: one run's model, its training loop and the live measurements. The
  * worker entry (`trainer.worker.ts`) exposes an instance with comlink; tests expose it over an in-thread
  * `MessageChannel`. The loop yields to the event loop every few tens of milliseconds so that pause, stop and
- * checkpoint requests are served between steps, and throttles progress messages so the page stays idle.
+ * checkpoint requests are served between steps, and throttles progress messages so the page stays idle. The loop
+ * itself is the shared one (shared/training/training-loop.ts), the same as `npm run train` and the runners use.
  */
 import { transfer } from 'comlink';
 import { decodeCheckpoint, encodeCheckpoint } from '../../../shared/model/checkpoint';
 import { TrainerError, TrainerErrorCode, toTrainerError } from '../../../shared/model/trainer-errors';
-import { createEngine, type RunEngine } from './run-engines';
+import { createEngine, type RunEngine } from '../../../shared/training/run-engines';
+import { runTrainingLoop } from '../../../shared/training/training-loop';
 import type {
-  CheckpointUploadAnswer, CheckpointUploadTarget, EngineInfo, ProgressCallback, TrainerApi, TrainerSettings, TrainingOutcome, TrainingProgress, TrainingSet,
+  CheckpointUploadAnswer, CheckpointUploadTarget, EngineInfo, ProgressCallback, TrainerApi, TrainerSettings, TrainingOutcome, TrainingSet,
 } from './trainer-api';
 
 /** What the worker entry knows about the compute it set up (backend name, SIMD, threads). */
@@ -18,8 +20,6 @@ export interface BackendReport { backend: string; simd: boolean; threads: number
 const YIELD_EVERY_MS = 25;
 /** One progress message a second keeps the page's main thread nearly idle. */
 const PROGRESS_EVERY_MS = 1000;
-
-const yieldToEvents = () => new Promise<void>((resolve) => setTimeout(resolve, 0));
 
 /**
  * Comlink sends a thrown Error as plain `{ name, message }`; the name carries the code from
@@ -64,78 +64,20 @@ export class TrainerSession implements TrainerApi {
     this.running = true;
     this.stopRequested = false;
     try {
-      if (engine.closedForm) {
-        // Awaited so the page has the figures before `start` resolves (comlink callbacks travel on their own port).
-        await onProgress({ step: 0, totalSteps: 0, wordsPerSecond: 0, etaSeconds: 0, trainBitsPerChar: 0, isBound: true, evaluation: engine.evaluate() });
-        return { kind: 'completed', step: 0 };
-      }
-      return await this.loop(engine, s, onProgress);
+      // The page's scheduler saves checkpoints (through `uploadCheckpoint`), so the loop gets no checkpoint sink.
+      // The last progress message is awaited so the page has it before `start` resolves (comlink callbacks travel
+      // on their own port).
+      const outcome = await runTrainingLoop(engine, s, {
+        progressEveryMs: PROGRESS_EVERY_MS,
+        yieldEveryMs: YIELD_EVERY_MS,
+        onProgress,
+        poll: () => (this.stopRequested ? 'stop' : this.pauseGate ? 'pause' : 'continue'),
+        waitWhilePaused: async () => { await this.pauseGate?.promise; },
+      });
+      return outcome.kind === 'paused' ? { kind: 'stopped', step: outcome.step } : outcome;
     } finally {
       this.running = false;
     }
-  }
-
-  private async loop(engine: RunEngine, s: TrainerSettings, onProgress: ProgressCallback): Promise<TrainingOutcome> {
-    let lastYield = performance.now();
-    let lastReport = lastYield;
-    let windowStart = lastYield;
-    let windowSteps = 0;
-    let windowPausedMs = 0;
-    let sumBits = 0;
-    let nBits = 0;
-    let isBound = true;
-    let wordsPerSecond = 0;
-    while (engine.stepCount < s.steps) {
-      if (this.pauseGate) {
-        const pausedAt = performance.now();
-        await this.pauseGate.promise;
-        windowPausedMs += performance.now() - pausedAt;
-        lastYield = performance.now();
-      }
-      if (this.stopRequested) return { kind: 'stopped', step: engine.stepCount };
-      let figures;
-      try {
-        figures = engine.step();
-      } catch (e) {
-        return { kind: 'failed', step: engine.stepCount, error: toTrainerError(e) };
-      }
-      windowSteps++;
-      sumBits += figures.bitsPerChar;
-      nBits++;
-      isBound = figures.isBound;
-      const step = engine.stepCount;
-      const evalNow = (s.evalEvery > 0 && step % s.evalEvery === 0) || step === s.steps;
-      const now = performance.now();
-      if (evalNow || now - lastReport >= PROGRESS_EVERY_MS) {
-        const elapsed = (now - windowStart - windowPausedMs) / 1000;
-        if (elapsed > 0) wordsPerSecond = (windowSteps * s.batchSize) / elapsed;
-        const progress: TrainingProgress = {
-          step, totalSteps: s.steps, wordsPerSecond,
-          etaSeconds: wordsPerSecond > 0 ? ((s.steps - step) * s.batchSize) / wordsPerSecond : null,
-          trainBitsPerChar: sumBits / nBits, isBound,
-        };
-        if (evalNow) {
-          try {
-            progress.evaluation = engine.evaluate();
-          } catch (e) {
-            return { kind: 'failed', step, error: toTrainerError(e) };
-          }
-        }
-        if (step === s.steps) await onProgress(progress); // the last message arrives before `start` resolves
-        else void onProgress(progress);
-        lastReport = performance.now();
-        windowStart = lastReport;
-        windowSteps = 0;
-        windowPausedMs = 0;
-        sumBits = 0;
-        nBits = 0;
-      }
-      if (performance.now() - lastYield >= YIELD_EVERY_MS) {
-        await yieldToEvents();
-        lastYield = performance.now();
-      }
-    }
-    return { kind: 'completed', step: engine.stepCount };
   }
 
   async pause(): Promise<void> {

@@ -5,26 +5,33 @@
  * shared/eval estimators; budgets here are small because they run every `evalEvery` steps during training.
  */
 import * as tf from '@tensorflow/tfjs-core';
-import { createBatcher, type Batcher } from '../../../shared/data/batcher';
-import { alphabetFromChars, encodeBatch, type Alphabet } from '../../../shared/data/encode';
-import { createRng, type Rng } from '../../../shared/data/random';
-import { gruLogProbs, heldOutFigures, ngramLogProbs } from '../../../shared/eval/baseline-figures';
-import { heldOutSample } from '../../../shared/eval/evaluation-report';
-import { noiseInformation } from '../../../shared/eval/noise-information';
-import { gruPredictiveEntropy, ssmObservationEntropy } from '../../../shared/eval/observation-entropy';
-import { drawCategorical, sampleWords } from '../../../shared/eval/samples';
-import { tightEstimate } from '../../../shared/eval/tight-estimate';
-import { CHECKPOINT_FORMAT_VERSION, type Checkpoint } from '../../../shared/model/checkpoint';
-import { GruLanguageModel, GruTrainer, type GruSettings } from '../../../shared/model/gru-lm';
-import { KneserNeyModel } from '../../../shared/model/ngram-kn';
-import { modelFromCheckpoint, restoreTrainer, ssmCheckpoint } from '../../../shared/model/ssm-checkpoint';
-import { StateSpaceModel } from '../../../shared/model/ssm';
-import { SsmTrainer } from '../../../shared/model/trainer';
-import { TrainerError, TrainerErrorCode } from '../../../shared/model/trainer-errors';
-import type { EvaluationFigures, TrainerSettings, TrainingSet } from './trainer-api';
+import { createBatcher, type Batcher } from '../data/batcher';
+import { alphabetFromChars, encodeBatch, type Alphabet } from '../data/encode';
+import { createRng, type Rng } from '../data/random';
+import { gruLogProbs, heldOutFigures, ngramLogProbs } from '../eval/baseline-figures';
+import { heldOutSample } from '../eval/evaluation-report';
+import { noiseInformation } from '../eval/noise-information';
+import { gruPredictiveEntropy, ssmObservationEntropy } from '../eval/observation-entropy';
+import { drawCategorical, sampleWords } from '../eval/samples';
+import { tightEstimate } from '../eval/tight-estimate';
+import { CHECKPOINT_FORMAT_VERSION, type Checkpoint } from '../model/checkpoint';
+import { GruLanguageModel, GruTrainer, type GruSettings } from '../model/gru-lm';
+import { KneserNeyModel } from '../model/ngram-kn';
+import { modelFromCheckpoint, restoreTrainer, ssmCheckpoint } from '../model/ssm-checkpoint';
+import { StateSpaceModel } from '../model/ssm';
+import { SsmTrainer } from '../model/trainer';
+import { TrainerError, TrainerErrorCode } from '../model/trainer-errors';
+import type { EvaluationFigures, TrainerSettings, TrainingSet } from './training-types';
 
 /** Validation budgets during training (the tight estimate of the evaluation page uses far larger ones). */
 export const LIVE_EVAL = { words: 64, k: 16, miWords: 12, miDraws: 64, entropyWords: 32, samples: 6 } as const;
+
+/**
+ * How the validation figures are measured. `live` (the app and the runners): LIVE_EVAL budgets, every figure,
+ * a fresh seed per step. `bound` (`npm run train`): only the held-out bound over `words` words with `k` samples
+ * and the run's seed; entropy, noise information and samples are left out (null / empty).
+ */
+export type ValidationBudget = { kind: 'live' } | { kind: 'bound'; words: number; k: number };
 
 /** `bitsPerChar`: minus the step's training bound (or exact log-likelihood) per character, bits — a cost, lower is better. */
 export interface StepFigures { bitsPerChar: number; isBound: boolean }
@@ -44,7 +51,7 @@ export interface RunEngine {
 const longestWord = (set: TrainingSet) => set.train.reduce((m, w) => Math.max(m, Array.from(w.word).length), 1);
 
 /** Builds the engine for a run: fresh from the seed or from a decoded checkpoint (validated against the run). */
-export function createEngine(s: TrainerSettings, set: TrainingSet, ck: Checkpoint | null): RunEngine {
+export function createEngine(s: TrainerSettings, set: TrainingSet, ck: Checkpoint | null, budget: ValidationBudget = { kind: 'live' }): RunEngine {
   if (set.train.length === 0) {
     throw new TrainerError(TrainerErrorCode.BadSettings, 'The training split of this corpus is empty; raise the training share or use a larger corpus.');
   }
@@ -59,8 +66,8 @@ export function createEngine(s: TrainerSettings, set: TrainingSet, ck: Checkpoin
   }
   const heldOut = set.validation.length > 0 ? set.validation : set.train;
   const ctx: EngineContext = {
-    s, set, alphabet, rng: createRng(s.seed),
-    valWords: heldOutSample(heldOut, LIVE_EVAL.words),
+    s, set, alphabet, rng: createRng(s.seed), budget,
+    valWords: heldOutSample(heldOut, budget.kind === 'bound' ? budget.words : LIVE_EVAL.words),
     tMax: longestWord(set) + 4,
   };
   if (s.family === 'ngram') return ngramEngine(ctx);
@@ -73,6 +80,7 @@ interface EngineContext {
   set: TrainingSet;
   alphabet: Alphabet;
   rng: Rng;
+  budget: ValidationBudget;
   valWords: string[];
   tMax: number;
 }
@@ -109,6 +117,10 @@ function ssmEngine(c: EngineContext, ck: Checkpoint | null): RunEngine {
     },
     evaluate() {
       const step = trainer.stepCount;
+      if (c.budget.kind === 'bound') {
+        const e = tightEstimate(model, c.valWords, alphabet, { k: c.budget.k, seed: s.seed });
+        return { step, validationBitsPerChar: e.bitsPerChar, validationBitsPerWord: e.bitsPerWord, observationEntropyBits: null, noiseInformationBits: null, samples: [] };
+      }
       const seed = createRng(s.seed).fork(`live-eval/${step}`).seed();
       const est = tightEstimate(model, c.valWords, alphabet, { k: LIVE_EVAL.k, seed, sampleChunk: LIVE_EVAL.k });
       const ent = ssmObservationEntropy(model, c.valWords.slice(0, LIVE_EVAL.entropyWords), alphabet, { k: 4, seed });
@@ -151,6 +163,9 @@ function gruEngine(c: EngineContext, ck: Checkpoint | null): RunEngine {
     },
     evaluate() {
       const f = heldOutFigures(c.valWords, gruLogProbs(model, c.valWords, alphabet));
+      if (c.budget.kind === 'bound') {
+        return { step: trainer.stepCount, validationBitsPerChar: f.bitsPerChar, validationBitsPerWord: f.bitsPerWord, observationEntropyBits: null, noiseInformationBits: null, samples: [] };
+      }
       const ent = gruPredictiveEntropy(model, c.valWords.slice(0, LIVE_EVAL.entropyWords), alphabet);
       return {
         step: trainer.stepCount, validationBitsPerChar: f.bitsPerChar, validationBitsPerWord: f.bitsPerWord,
@@ -193,7 +208,7 @@ export function gruSamples(model: GruLanguageModel, alphabet: Alphabet, n: numbe
 
 function ngramEngine(c: EngineContext): RunEngine {
   const { s, alphabet } = c;
-  const model = KneserNeyModel.estimate(c.set.train, alphabet, { order: s.order });
+  const model = KneserNeyModel.estimate(c.set.train, alphabet, { order: s.order, ...(s.discount != null ? { discount: s.discount } : {}) });
   const rng = c.rng.fork('ngram-samples');
   const sample = (n: number) => Array.from({ length: n }, () => {
     let word = '';
@@ -214,7 +229,7 @@ function ngramEngine(c: EngineContext): RunEngine {
       const f = heldOutFigures(c.valWords, ngramLogProbs(model, c.valWords));
       return {
         step: 0, validationBitsPerChar: f.bitsPerChar, validationBitsPerWord: f.bitsPerWord,
-        observationEntropyBits: null, noiseInformationBits: null, samples: sample(LIVE_EVAL.samples),
+        observationEntropyBits: null, noiseInformationBits: null, samples: c.budget.kind === 'bound' ? [] : sample(LIVE_EVAL.samples),
       };
     },
     checkpoint: () => ({

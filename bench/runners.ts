@@ -1,0 +1,95 @@
+/**
+ * `npm run bench:runners`: wall time of an 8-cell grid of small runs trained by a runner with 1 thread and with
+ * 2 threads (one job per thread), on the real server (embedded back-end, loopback, temporary database) through
+ * the runner routes. Rounds alternate the two set-ups (1, 2, 2, 1, ...) so a change in the machine's load hits
+ * both. Writes bench/results/runners.json and prints the figures. Target: 2 threads ≥ 1.7× faster on 2 cores.
+ * Options (environment): BENCH_RUNNER_STEPS (steps per run, default 150), BENCH_RUNNER_ROUNDS (default 2).
+ */
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { availableParallelism, cpus, loadavg } from 'node:os';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import type { GridDto } from '../shared/api/grids';
+import { startRunnerThreads } from '../runner/runner';
+import { api, json, openLab, runnerToken, runsOf, startHarnessServer, waitFor, type Lab } from '../tests/cross/support/runner-harness';
+
+const root = join(dirname(fileURLToPath(import.meta.url)), '..');
+const CELLS = 8;
+const STEPS = Number(process.env['BENCH_RUNNER_STEPS'] ?? 150);
+const ROUNDS = Number(process.env['BENCH_RUNNER_ROUNDS'] ?? 2);
+const quiet = { write: () => true, isTTY: false };
+
+/** A small state-space model that trains at tens of steps per second on one core (state 8, K 4, batch 32). */
+const SETTINGS = {
+  model: { stateSize: 8, generativeFlow: [{ kind: 'coupling' }, { kind: 'diag' }], inferenceFlow: [{ kind: 'diag' }], flowHidden: 16, encoderSize: 16, embeddingSize: 8, proposalHidden: 16, observationHidden: 0 },
+  training: { steps: STEPS, batchSize: 32, samples: 4, learningRate: 0.01, clipNorm: 5, evalEvery: 50, evalSamples: 8, checkpointEvery: 50, seed: 1 },
+};
+
+interface Measure { wallSeconds: number; cpuSeconds: number }
+
+/** Wall time of one grid, and the CPU time this process (server, runner and its threads) used meanwhile. */
+async function measureGrid(base: string, lab: Lab, token: string, threads: number, round: number): Promise<Measure> {
+  const runner = startRunnerThreads({ serverUrl: base, token, threads, name: `bench-${threads}`, output: quiet });
+  try {
+    const t0 = performance.now();
+    const cpu0 = process.cpuUsage();
+    const grid = await api<GridDto>(base, `/benches/${lab.benchId}/grids`, lab.token, json({
+      name: `bench ${threads} thread(s), round ${round}`, corpusId: lab.corpusId, family: 'ssm', baseSettings: SETTINGS,
+      axes: [{ key: 'training.seed', values: Array.from({ length: CELLS }, (_, i) => 100 * round + threads * 10 + i) }], placement: 'runners',
+    }));
+    const ids = new Set(grid.cells.map((c) => c.run?.id));
+    await waitFor(`the ${CELLS} runs of the grid to finish`, async () => {
+      const runs = (await runsOf(base, lab)).filter((r) => ids.has(r.id));
+      const failed = runs.find((r) => r.status === 'failed');
+      if (failed) throw new Error(`Run ${failed.name} failed: ${failed.statusReason}`);
+      return runs.length === CELLS && runs.every((r) => r.status === 'finished');
+    }, 30 * 60_000, 200);
+    const cpu = process.cpuUsage(cpu0);
+    return { wallSeconds: (performance.now() - t0) / 1000, cpuSeconds: (cpu.user + cpu.system) / 1e6 };
+  } finally {
+    await runner.stop();
+  }
+}
+
+const server = await startHarnessServer();
+try {
+  const lab = await openLab(server.url);
+  const token = await runnerToken(server.url, lab, 'bench');
+  const loadBefore = loadavg();
+  const times: Record<1 | 2, number[]> = { 1: [], 2: [] };
+  const cores: Record<1 | 2, number[]> = { 1: [], 2: [] };
+  for (let round = 0; round < ROUNDS; round++) {
+    for (const threads of round % 2 === 0 ? [1, 2] as const : [2, 1] as const) {
+      const m = await measureGrid(server.url, lab, token, threads, round);
+      times[threads].push(m.wallSeconds);
+      cores[threads].push(m.cpuSeconds / m.wallSeconds);
+      process.stdout.write(`round ${round + 1}: ${threads} thread(s): ${m.wallSeconds.toFixed(1)} s for ${CELLS} runs of ${STEPS} steps, ` +
+        `${(m.cpuSeconds / m.wallSeconds).toFixed(2)} cores busy on average\n`);
+    }
+  }
+  const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor((xs.length - 1) / 2)] as number;
+  const one = median(times[1]);
+  const two = median(times[2]);
+  const result = {
+    what: `${CELLS}-cell grid of ${STEPS}-step state-space runs (state 8, K 4, batch 32), embedded back-end, runner threads in one process`,
+    measuredAt: new Date().toISOString(),
+    cpu: cpus()[0]?.model ?? 'unknown', cores: availableParallelism(),
+    loadAverageBefore: loadBefore.map((x) => Number(x.toFixed(2))), loadAverageAfter: loadavg().map((x) => Number(x.toFixed(2))),
+    wallSeconds: { oneThread: times[1].map((x) => Number(x.toFixed(2))), twoThreads: times[2].map((x) => Number(x.toFixed(2))) },
+    medianWallSeconds: { oneThread: Number(one.toFixed(2)), twoThreads: Number(two.toFixed(2)) },
+    /** CPU seconds of this process per wall second: how many cores the runs actually got. */
+    coresUsed: { oneThread: cores[1].map((x) => Number(x.toFixed(2))), twoThreads: cores[2].map((x) => Number(x.toFixed(2))) },
+    speedUp: Number((one / two).toFixed(2)),
+    target: 1.7,
+    note: 'Wall time from creating the grid until its last run finished, thread start-up included. Other processes shared the ' +
+      'machine (see the load averages); when they keep both cores busy, a second thread gets no more CPU (coresUsed) and the ' +
+      'speed-up cannot show.',
+  };
+  mkdirSync(join(root, 'bench', 'results'), { recursive: true });
+  writeFileSync(join(root, 'bench', 'results', 'runners.json'), `${JSON.stringify(result, null, 2)}\n`);
+  process.stdout.write(`1 thread: ${one.toFixed(1)} s, 2 threads: ${two.toFixed(1)} s, speed-up ${result.speedUp}× (target ≥ 1.7×); ` +
+    `load average before ${result.loadAverageBefore.join(' ')}, after ${result.loadAverageAfter.join(' ')}\n` +
+    `written to bench/results/runners.json\n`);
+} finally {
+  await server.stop();
+}

@@ -1,0 +1,160 @@
+/**
+ * The runner: `threads` worker threads, each training one job at a time, fed either by polling the server
+ * (`POST /api/runner/claim` without a run id, backing off while there is nothing to do: the embedded back-end)
+ * or by a BullMQ `Worker` on the queue `noisewright-runs` (each job = claim that run, train it, return). A
+ * heartbeat every 5 s renews the leases and brings pause/stop controls. `stop()` hands every job back as
+ * `queued` after saving a checkpoint. The server starts its embedded runner threads with `startRunnerThreads`.
+ */
+import { hostname } from 'node:os';
+import { DelayedError, Worker as QueueWorker, type Job } from 'bullmq';
+import { Redis } from 'ioredis';
+import {
+  RUNNER_QUEUE_NAME, RUNNER_WORKER_LOCK_MS, RUNNER_WORKER_MAX_STALLED, RUNNER_WORKER_STALLED_INTERVAL_MS, type RunnerJob, type RunnerQueueJobData,
+} from '../shared/api/runner-jobs';
+import { ProgressDisplay, type ProgressOutput } from './progress-display';
+import { RunnerApi, RunnerApiError } from './runner-api';
+import { ThreadSlot } from './thread-slot';
+import type { JobResult } from './train-job';
+
+export interface RunnerOptions {
+  serverUrl: string;
+  token: string;
+  threads: number;
+  name?: string;
+  /** `redis://host:port`: take jobs from BullMQ; absent: claim from the server (embedded back-end). */
+  queueUrl?: string;
+  /** Where progress lines go (default: standard error; a multibar when it is a terminal). */
+  output?: ProgressOutput;
+}
+
+export interface RunnerHandle {
+  /** Saves a checkpoint of every job, hands them back as `queued`, and ends the threads. */
+  stop(): Promise<void>;
+}
+
+const HEARTBEAT_EVERY_MS = 5000;
+const IDLE_FIRST_MS = 500;
+const IDLE_MAX_MS = 5000;
+/** How long `stop()` waits for jobs to save and hand back before ending the threads anyway. */
+const STOP_WAIT_MS = 60_000;
+
+class HandedBack extends Error {
+  override readonly name = 'HandedBack';
+}
+
+export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
+  if (!Number.isInteger(o.threads) || o.threads < 1) throw new Error(`Give at least one runner thread (got ${o.threads}).`);
+  const api = new RunnerApi(o.serverUrl, o.token);
+  const name = o.name ?? hostname();
+  const display = new ProgressDisplay(o.output ?? process.stderr);
+  const slots = Array.from({ length: o.threads }, (_, i) => new ThreadSlot(i, (slot) => { if (slot.progress) display.update(slot.progress); }));
+  let stopping = false;
+  let wake: () => void = () => {};
+  const stopped = new Promise<void>((resolve) => { wake = resolve; });
+  const sleep = (ms: number) => Promise.race([new Promise<void>((r) => setTimeout(r, ms).unref()), stopped]);
+
+  const heartbeat = async () => {
+    const jobs = slots.filter((s) => s.progress).map((s) => ({ runId: s.progress!.runId, step: s.progress!.step, stepsPerSecond: s.progress!.stepsPerSecond }));
+    try {
+      const answer = await api.heartbeat({ name, threads: o.threads, jobs });
+      for (const c of answer.controls) slots.find((s) => s.runId === c.runId)?.command(c.action);
+    } catch (e) {
+      display.note(`heartbeat: ${(e as Error).message}`);
+    }
+  };
+  const timer = setInterval(() => void heartbeat(), HEARTBEAT_EVERY_MS);
+  void heartbeat();
+  display.note(`runner "${name}": ${o.threads} thread(s), server ${o.serverUrl}, ${o.queueUrl ? `queue ${o.queueUrl}` : 'claiming from the server'}`);
+
+  const train = async (slot: ThreadSlot, job: RunnerJob): Promise<JobResult> => {
+    display.note(`${job.runName}: claimed (run ${job.runId}, from step ${job.stepsDone})`);
+    const result = await slot.run(job, o.serverUrl, o.token);
+    if (result.status === 'lost' && result.reason?.startsWith('Thread')) {
+      // The thread died: give the run back so it resumes from its latest checkpoint.
+      await api.finish(job.runId, { status: 'queued', stepsDone: result.step, statusReason: result.reason.slice(0, 500) }).catch(() => undefined);
+    }
+    display.done(job.runName, result);
+    return result;
+  };
+
+  let loops: Promise<void>[] = [];
+  let queueWorker: QueueWorker<RunnerQueueJobData> | null = null;
+  let connection: Redis | null = null;
+  if (o.queueUrl) {
+    const free = [...slots];
+    connection = new Redis(o.queueUrl, { maxRetriesPerRequest: null });
+    queueWorker = new QueueWorker<RunnerQueueJobData>(RUNNER_QUEUE_NAME, async (job: Job<RunnerQueueJobData>, lockToken?: string) => {
+      if (stopping) throw new HandedBack('The runner is shutting down.');
+      let claimed: RunnerJob | null;
+      try {
+        claimed = await api.claim(job.data.runId);
+      } catch (e) {
+        if (e instanceof RunnerApiError && e.code === 'RUN_NOT_QUEUED') return 'not queued';
+        if (e instanceof RunnerApiError && e.code === 'RUN_HELD') {
+          // Another runner's lease is still fresh (a killed runner's lease runs out): try again when it has,
+          // without holding a thread meanwhile or using up an attempt.
+          await job.moveToDelayed(Date.now() + Math.max(1, e.retryAfterSeconds ?? 5) * 1000, lockToken);
+          throw new DelayedError();
+        }
+        throw e;
+      }
+      if (!claimed) return 'nothing to do';
+      const slot = free.shift();
+      if (!slot) {
+        await api.finish(claimed.runId, { status: 'queued', stepsDone: claimed.stepsDone }).catch(() => undefined);
+        throw new HandedBack('No free runner thread (more jobs than threads).');
+      }
+      try {
+        const result = await train(slot, claimed);
+        // Handed back on shutdown: fail this attempt so BullMQ gives the job to another runner after the backoff.
+        if (result.status === 'queued') throw new HandedBack(`Run ${claimed.runId} was handed back at step ${result.step}.`);
+        return result.status;
+      } finally {
+        free.push(slot);
+      }
+    }, {
+      connection, concurrency: o.threads, lockDuration: RUNNER_WORKER_LOCK_MS,
+      stalledInterval: RUNNER_WORKER_STALLED_INTERVAL_MS, maxStalledCount: RUNNER_WORKER_MAX_STALLED,
+    });
+    queueWorker.on('error', (e) => display.note(`queue: ${e.message}`));
+  } else {
+    loops = slots.map(async (slot) => {
+      let idle = IDLE_FIRST_MS;
+      while (!stopping) {
+        let job: RunnerJob | null = null;
+        try {
+          job = await api.claim();
+        } catch (e) {
+          display.note(`claim: ${(e as Error).message}`);
+        }
+        if (stopping && job) {
+          await api.finish(job.runId, { status: 'queued', stepsDone: job.stepsDone }).catch(() => undefined);
+          break;
+        }
+        if (!job) {
+          await sleep(idle);
+          idle = Math.min(IDLE_MAX_MS, idle * 2);
+          continue;
+        }
+        idle = IDLE_FIRST_MS;
+        await train(slot, job);
+      }
+    });
+  }
+
+  return {
+    async stop() {
+      if (stopping) return;
+      stopping = true;
+      wake();
+      for (const s of slots) s.command('shutdown');
+      const closing = Promise.all([...loops, queueWorker ? queueWorker.close() : Promise.resolve()]);
+      await Promise.race([closing, new Promise((r) => setTimeout(r, STOP_WAIT_MS).unref())]);
+      clearInterval(timer);
+      await api.heartbeat({ name, threads: 0, jobs: [] }).catch(() => undefined);
+      await Promise.all(slots.map((s) => s.close()));
+      await connection?.quit().catch(() => undefined);
+      display.stop();
+    },
+  };
+}
