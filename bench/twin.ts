@@ -78,7 +78,7 @@ const relDiff = (a: number, b: number) => Math.abs(a - b) / Math.max(Math.abs(a)
 function startTwin(exportFile: string) {
   const child = spawn(PYTHON, [join(root, 'bench', 'torch-twin', 'twin_main.py'), exportFile], {
     stdio: ['pipe', 'pipe', 'inherit'],
-    env: { ...process.env, OMP_NUM_THREADS: '1', MKL_NUM_THREADS: '1' },
+    env: { ...process.env, OMP_NUM_THREADS: '1', MKL_NUM_THREADS: '1', PYTHONDONTWRITEBYTECODE: '1' },
   });
   const lines = createInterface({ input: child.stdout })[Symbol.asyncIterator]();
   child.on('exit', (code) => { if (code !== 0 && code !== null) fail(`the PyTorch twin exited with code ${code}.`); });
