@@ -47,6 +47,13 @@ export function resultsMarkdown(ctx: ReportContext, rows: RowFigures[], claims: 
     '',
     '## Claims',
     '',
+    ...(b.name === 'quick' ? ['At the quick budget no model is near convergence: the verdicts below show that the harness works and ' +
+      'how early training compares, not whether the claims hold. Only a full run (`npm run bench:science`) can say that.', ''] : []),
+    'Decision rules (fixed in `bench/science/science-claims.ts`, not tuned): (a) yes if SSM-8\'s SUBTLEX cross entropy is at most ' +
+      'GRU-8\'s and its names held-out cost is within 0.05 bits/char of GRU-8\'s, partly if one of the two; (b)–(d) yes if the ' +
+      'variant is worse than SSM-8 by more than SSM-8\'s seed range, partly if worse within it; (e) yes if every position\'s mean MI ' +
+      'exceeds 0.01 bits and the first is the highest; (f) yes if SSM-8\'s observation entropy is below GRU-8\'s on every corpus and seed.',
+    '',
     '| claim | what we measured | reproduced? |',
     '|---|---|---|',
     ...claims.map((c) => `| (${c.id}) ${c.claim} | ${c.measured} | ${c.verdict} |`),
