@@ -18,6 +18,12 @@ export class TimeProbe {
   private readonly factory = inject(TRAINER_FACTORY);
   private readonly probes = new Map<string, Promise<ProbeResult>>();
   private readonly lengths = new Map<string, Promise<{ length: number; types: number; tokens: number }[]>>();
+  private readonly cancels = new Set<() => void>();
+
+  /** Ends every probe still running (its worker is terminated; its promise rejects). */
+  cancel(): void {
+    for (const stop of [...this.cancels]) stop();
+  }
 
   /** Timings of `settings` on this computer (cached per configuration, corpus and typical word length). */
   async measure(benchId: string, corpusId: string, alphabetSize: number, settings: TrainerSettings): Promise<ProbeResult> {
@@ -50,11 +56,15 @@ export class TimeProbe {
 
   private async run(request: ProbeRequest): Promise<ProbeResult> {
     const handle = this.factory();
+    let stop = () => {};
+    const stopped = new Promise<never>((_, reject) => { stop = () => reject(new Error('The time probe was stopped.')); });
+    this.cancels.add(stop);
     try {
-      return await handle.api.probe(request);
+      return await Promise.race([handle.api.probe(request), stopped]);
     } catch (e) {
       throw new Error(fromBoundaryError(e).message);
     } finally {
+      this.cancels.delete(stop);
       handle.close();
     }
   }

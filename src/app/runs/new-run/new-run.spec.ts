@@ -33,7 +33,7 @@ async function setUp() {
       provideRouter([]),
       { provide: RunsApi, useValue: { corpora: async () => [CORPUS], create } },
       { provide: RunScheduler, useValue: { enqueue } },
-      { provide: TimeProbe, useValue: { measure } },
+      { provide: TimeProbe, useValue: { measure, cancel: vi.fn() } },
       { provide: CurrentBench, useValue: { current: signal({ id: 'b1', name: 'Bench' }), open: async () => null } },
     ],
   });

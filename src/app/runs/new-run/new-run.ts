@@ -1,5 +1,5 @@
 import { DecimalPipe } from '@angular/common';
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
 import { ReactiveFormsModule, type AbstractControl, type FormControl } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -101,6 +101,7 @@ export class NewRun {
   });
 
   constructor() {
+    inject(DestroyRef).onDestroy(() => this.timeProbe.cancel()); // leaving the form ends a probe still running
     effect(() => {
       this.value();
       if (this.onLastStep()) untracked(() => this.measureTime());
