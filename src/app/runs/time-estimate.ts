@@ -1,23 +1,70 @@
 /**
- * A rough training-time estimate shown before a run starts (the live ETA replaces it once steps are timed).
- * Rule of thumb (no source), two parts per step: a kernel-dispatch overhead that grows with the longest word
- * and the number of layers unrolled per character, plus arithmetic of about batch × K × steps-per-word × P
- * multiply-adds (P = parameter count; the GRU has no K). Both constants were fitted on this project's 2-core
- * test machine: the reference case of bench/results/node.json (≈ 1.7 s/step) and the small model of the
- * end-to-end test (≈ 0.3 s/step). Expect a factor of two either way.
+ * The pre-run time estimate, measured on the user's own computer: a web worker trains the chosen configuration
+ * for a few steps on synthetic words as long as a typical batch's longest word (`TrainerApi.probe`), and times
+ * one set of live validation figures; the run's time is then steps × step time + measurements × measurement
+ * time. Checkpoint uploads and other work on the computer are not included. The live view replaces the
+ * estimate with the real pace after the first steps.
  */
-import type { TrainerSettings } from '../workers/trainer-api';
+import type { ProbeResult, TrainerSettings } from '../workers/trainer-api';
 
-/** Seconds per unrolled character and layer (kernel dispatch). */
-export const DISPATCH_SECONDS = 0.01;
-/** Effective multiply-adds per second of one worker on the WASM backend. */
-export const ARITHMETIC_RATE = 1.2e8;
+/** A word length and its weight in the batches (tokens when drawing by count, types when drawing each word once). */
+export interface LengthWeight {
+  length: number;
+  weight: number;
+}
 
-export function estimateSeconds(s: TrainerSettings, parameterCount: number | null, meanSteps = 8, longestSteps = 12): number | null {
-  if (s.family === 'ngram') return 1;
-  if (parameterCount === null || parameterCount <= 0) return null;
-  const k = s.family === 'ssm' ? s.samples : 1;
-  const layers = s.family === 'ssm' ? 2 + s.generativeFlow.length + s.inferenceFlow.length : 1;
-  const perStep = DISPATCH_SECONDS * longestSteps * layers + (s.batchSize * k * meanSteps * parameterCount) / ARITHMETIC_RATE;
-  return perStep * s.steps;
+/**
+ * Expected length of the longest of `batchSize` independent draws from a length distribution: with F the
+ * cumulative distribution, P(max ≤ L) = F(L)^B, so E[max] = Σ_L L·(F(L)^B − F(L−1)^B) (order statistics of
+ * independent draws, closed form). A batch is padded to its longest word, so this sets the step's length.
+ */
+export function expectedLongestWord(lengths: readonly LengthWeight[], batchSize: number): number {
+  const bins = lengths.filter((l) => l.weight > 0 && l.length > 0).sort((a, b) => a.length - b.length);
+  const total = bins.reduce((s, l) => s + l.weight, 0);
+  if (!(total > 0) || !(batchSize >= 1)) return 0;
+  let below = 0;
+  let expected = 0;
+  for (const bin of bins) {
+    const upTo = Math.min(1, (below + bin.weight) / total);
+    expected += bin.length * (Math.pow(upTo, batchSize) - Math.pow(below / total, batchSize));
+    below += bin.weight;
+  }
+  return expected;
+}
+
+/** Length weights from a corpus's length histogram for the run's sampling regime. */
+export function lengthWeightsOf(histogram: readonly { length: number; types: number; tokens: number }[], regime: 'token' | 'type'): LengthWeight[] {
+  return histogram.map((b) => ({ length: b.length, weight: regime === 'token' ? b.tokens : b.types }));
+}
+
+/** How many times a run measures its live validation figures: every `evalEvery` steps and after the last step. */
+export function evaluationCount(steps: number, evalEvery: number): number {
+  if (steps <= 0) return 0;
+  if (evalEvery <= 0) return 1;
+  return Math.floor(steps / evalEvery) + (steps % evalEvery === 0 ? 0 : 1);
+}
+
+/** Mean length of a word drawn from the length distribution (0 when empty). */
+export function meanLength(lengths: readonly LengthWeight[]): number {
+  const total = lengths.reduce((s, l) => s + Math.max(0, l.weight), 0);
+  return total > 0 ? lengths.reduce((s, l) => s + l.length * Math.max(0, l.weight), 0) / total : 0;
+}
+
+export interface RunTimeEstimate {
+  secondsPerStep: number;
+  /** The one-off set-up of the run's fresh worker (first step and first measurement), included in the total. */
+  setupSeconds: number;
+  totalSeconds: number;
+}
+
+/** The run's time from a probe's timings (seconds): set-up + steps × step time + measurements × measurement time. */
+export function estimateFromProbe(probe: Pick<ProbeResult, 'secondsPerStep' | 'secondsPerEvaluation' | 'setupSeconds'>,
+                                  s: Pick<TrainerSettings, 'family' | 'steps' | 'evalEvery'>): RunTimeEstimate {
+  const steps = s.family === 'ngram' ? 0 : s.steps;
+  const evaluations = s.family === 'ngram' ? 1 : evaluationCount(steps, s.evalEvery);
+  const setupSeconds = probe.setupSeconds;
+  return {
+    secondsPerStep: probe.secondsPerStep, setupSeconds,
+    totalSeconds: setupSeconds + steps * probe.secondsPerStep + evaluations * probe.secondsPerEvaluation,
+  };
 }

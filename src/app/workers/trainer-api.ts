@@ -24,6 +24,33 @@ export interface CheckpointUploadTarget {
 /** The server's answer to a checkpoint upload: the stored checkpoint's description. */
 export type CheckpointUploadAnswer = CheckpointDto;
 
+/** What `probe` times: a run configuration on synthetic words of a typical batch's longest length. */
+export interface ProbeRequest {
+  settings: TrainerSettings;
+  /** Characters of the corpus's alphabet (without EOW). */
+  alphabetSize: number;
+  /** Characters of every synthetic training word (a typical batch's longest word; see src/app/runs/time-estimate.ts). */
+  wordLength: number;
+  /** Characters of the synthetic validation words (default: `wordLength`). */
+  validationWordLength?: number;
+}
+
+/** Timings of a probe on this computer, seconds. */
+export interface ProbeResult {
+  /** Median wall time of one training step after a few untimed steps (0 for the n-gram). */
+  secondsPerStep: number;
+  /** Wall time of one set of live validation figures (measured every `evalEvery` steps), after a first untimed one. */
+  secondsPerEvaluation: number;
+  /** One-off extra time of a fresh worker: the first step's and the first measurement's excess over the later ones. */
+  setupSeconds: number;
+  timedSteps: number;
+  wordLength: number;
+  backend: string;
+  parameterCount: number;
+  /** Wall time of the whole probe, set-up included. */
+  probeSeconds: number;
+}
+
 /** Called from the worker through a comlink proxy (so it returns a promise on the worker's side). */
 export type ProgressCallback = (progress: TrainingProgress) => void | Promise<void>;
 
@@ -47,4 +74,9 @@ export interface TrainerApi {
   samples(n: number): Promise<string[]>;
   /** Frees the model's tensors. */
   dispose(): Promise<void>;
+  /**
+   * Times a few steps (and one live measurement) of `request.settings` on synthetic words, with a model of its
+   * own that is freed afterwards; independent of `init`. Used for the estimate on the new-run form.
+   */
+  probe(request: ProbeRequest): Promise<ProbeResult>;
 }

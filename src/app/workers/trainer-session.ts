@@ -13,6 +13,8 @@ import { runTrainingLoop } from '../../../shared/training/training-loop';
 import type {
   CheckpointUploadAnswer, CheckpointUploadTarget, EngineInfo, ProgressCallback, TrainerApi, TrainerSettings, TrainingOutcome, TrainingSet,
 } from './trainer-api';
+import type { ProbeRequest, ProbeResult } from './trainer-api';
+import { runProbe } from './trainer-probe';
 
 /** What the worker entry knows about the compute it set up (backend name, SIMD, threads). */
 export interface BackendReport { backend: string; simd: boolean; threads: number }
@@ -142,6 +144,17 @@ export class TrainerSession implements TrainerApi {
       if (!this.engine) throw new TrainerError(TrainerErrorCode.WrongState, 'Call init before asking for samples.');
       if (!Number.isInteger(n) || n < 1 || n > 1000) throw new TrainerError(TrainerErrorCode.BadSettings, `Ask for 1 to 1000 samples (got ${n}).`);
       return this.engine.samples(n);
+    } catch (e) {
+      throw boundaryError(e);
+    }
+  }
+
+  async probe(request: ProbeRequest): Promise<ProbeResult> {
+    try {
+      if (this.running) throw new TrainerError(TrainerErrorCode.WrongState, 'This worker is training; probe in a worker of its own.');
+      validateSettings(request?.settings);
+      const report = await this.backend();
+      return runProbe(request, report.backend);
     } catch (e) {
       throw boundaryError(e);
     }

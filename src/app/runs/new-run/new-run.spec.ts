@@ -13,6 +13,7 @@ import { RunnersApi } from '../../runners/runners-api';
 import { CurrentBench } from '../../benches/current-bench';
 import { RunScheduler } from '../run-scheduler';
 import { RunsApi } from '../runs-api';
+import { TimeProbe } from '../time-estimate-probe';
 import { NewRun } from './new-run';
 
 const CORPUS = {
@@ -23,6 +24,9 @@ const CORPUS = {
 async function setUp() {
   const create = vi.fn(async () => ({ id: 'run-1' }));
   const enqueue = vi.fn(async () => undefined);
+  const measure = vi.fn(async () => ({
+    secondsPerStep: 0.25, secondsPerEvaluation: 2, setupSeconds: 5, timedSteps: 4, wordLength: 9, backend: 'wasm', parameterCount: 1, probeSeconds: 3,
+  }));
   TestBed.configureTestingModule({
     imports: [NewRun],
     providers: [
@@ -32,6 +36,7 @@ async function setUp() {
       { provide: RunnersApi, useValue: { availability: async () => ({ backend: 'embedded', onlineRunners: 0, onlineThreads: 0, waiting: 0, active: 0, canSend: true }) } },
       { provide: RunsApi, useValue: { corpora: async () => [CORPUS], create } },
       { provide: RunScheduler, useValue: { enqueue } },
+      { provide: TimeProbe, useValue: { measure, cancel: vi.fn() } },
       { provide: CurrentBench, useValue: { current: signal({ id: 'b1', name: 'Bench' }), open: async () => null } },
     ],
   });
@@ -39,7 +44,7 @@ async function setUp() {
   fixture.componentRef.setInput('benchId', 'b1');
   const loader = TestbedHarnessEnvironment.loader(fixture);
   await fixture.whenStable();
-  return { fixture, loader, create, enqueue };
+  return { fixture, loader, create, enqueue, measure };
 }
 
 type Loader = Awaited<ReturnType<typeof setUp>>['loader'];
@@ -112,6 +117,25 @@ describe('NewRun form', { timeout: 30_000 }, () => {
     const shift = d * F + F + F * d + d;
     const ssm = d + (d * V + V) + V * E + (E * 3 * H + 3 * H) + (H * 3 * H + 3 * H) + (d * P + H * P + P + P * 2 * d + 2 * d) + 2 * shift;
     expect(text(fixture, 'parameter-count').replace(/[^\d]/g, '')).toBe(String(ssm));
+  });
+
+  it('shows the time measured by the probe on the last step and rescales it when only the steps change', async () => {
+    const { fixture, loader, measure } = await setUp();
+    await (await input(loader, 'name')).setValue('Timed');
+    await (await loader.getHarness(MatSelectHarness)).clickOptions({ text: /Syllables/ });
+    const stepper = await loader.getHarness(MatStepperHarness);
+    expect(measure).not.toHaveBeenCalled();
+    await (await stepper.getSteps({ label: 'Check and start' }))[0]!.select();
+    await fixture.whenStable();
+    expect(measure).toHaveBeenCalledTimes(1);
+    // Default 1,000 steps, measured every 100: 5 s + 1000 × 0.25 s + 10 × 2 s = 275 s (arithmetic of time-estimate.ts).
+    expect(text(fixture, 'time-estimate')).toBe('measured on this computer: about 0.25 s per step → about 4 min 35 s');
+    await (await stepper.getSteps({ label: 'Training' }))[0]!.select();
+    await (await input(loader, 'steps')).setValue('2000');
+    await (await stepper.getSteps({ label: 'Check and start' }))[0]!.select();
+    await fixture.whenStable();
+    expect(measure).toHaveBeenCalledTimes(1); // the step count does not change the step time: no new probe
+    expect(text(fixture, 'time-estimate')).toContain('about 9 min 05 s'); // 5 + 2000 × 0.25 + 20 × 2 = 545 s
   });
 
   it('creates the run and queues it when everything is valid (quick look preset)', async () => {

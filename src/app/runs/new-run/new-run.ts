@@ -1,5 +1,5 @@
 import { DecimalPipe } from '@angular/common';
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
 import { ReactiveFormsModule, type AbstractControl, type FormControl } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -24,7 +24,9 @@ import { applyPreset, createRunForm, createRunRequest, trainerSettingsFromForm, 
 import { RunScheduler } from '../run-scheduler';
 import { parameterCountOf } from '../run-trainer-settings';
 import { RunsApi } from '../runs-api';
-import { estimateSeconds } from '../time-estimate';
+import { estimateFromProbe } from '../time-estimate';
+import { TimeProbe } from '../time-estimate-probe';
+import type { ProbeResult } from '../../workers/trainer-api';
 
 /** Inline message for a numeric or text control: what is wrong and how to fix it. */
 export function fieldMessage(c: AbstractControl, label: string): string {
@@ -84,19 +86,53 @@ export class NewRun {
       return null;
     }
   });
+  private readonly timeProbe = inject(TimeProbe);
+  /** True while the last step (check and start) is open: the time probe runs only there. */
+  protected readonly onLastStep = signal(false);
+  private readonly probe = signal<{ key: string; result?: ProbeResult; error?: string } | null>(null);
+  /** The run's time measured on this computer by a short probe in a worker (time-estimate.ts). */
   protected readonly estimate = computed(() => {
     this.value();
     if (this.form.invalid) return '—';
-    return formatDuration(estimateSeconds(trainerSettingsFromForm(this.form.getRawValue()), this.parameterCount()));
+    const settings = trainerSettingsFromForm(this.form.getRawValue());
+    if (settings.family === 'ngram') return 'a few seconds (counted, no training steps)';
+    const p = this.probe();
+    if (!p || p.key !== this.probeKey()) return 'measuring on this computer…';
+    if (!p.result) return `— (could not measure: ${p.error ?? 'unknown error'})`;
+    const e = estimateFromProbe(p.result, settings);
+    const perStep = e.secondsPerStep >= 10 ? e.secondsPerStep.toFixed(0) : e.secondsPerStep.toPrecision(2);
+    return `measured on this computer: about ${perStep} s per step → about ${formatDuration(e.totalSeconds)}`;
   });
 
   constructor() {
+    inject(DestroyRef).onDestroy(() => this.timeProbe.cancel()); // leaving the form ends a probe still running
+    effect(() => {
+      this.value();
+      if (this.onLastStep()) untracked(() => this.measureTime());
+    });
     effect(() => {
       const id = this.benchId();
       untracked(() => {
         this.api.corpora(id).then((c) => this.corpora.set(c)).catch((e: unknown) => this.problem.set(messageOf(e)));
       });
     });
+  }
+
+  /** What the probe depends on (not the number of steps, the seed or the measuring interval). */
+  private probeKey(): string {
+    const v = this.form.getRawValue();
+    return JSON.stringify([v.data.corpusId, v.model, { ...v.training, steps: 0, seed: 0, evalEvery: 0, checkpointEvery: 0 }]);
+  }
+
+  private measureTime(): void {
+    const corpus = this.corpus();
+    if (this.form.invalid || !corpus || this.form.controls.model.controls.family.value === 'ngram') return;
+    const key = this.probeKey();
+    if (this.probe()?.key === key) return;
+    this.probe.set({ key });
+    this.timeProbe.measure(this.benchId(), corpus.id, corpus.alphabetSize, trainerSettingsFromForm(this.form.getRawValue()))
+      .then((result) => { if (this.probe()?.key === key) this.probe.set({ key, result }); })
+      .catch((e: unknown) => { if (this.probe()?.key === key) this.probe.set({ key, error: messageOf(e) }); });
   }
 
   protected preset(name: keyof typeof PRESETS): void {
