@@ -6,7 +6,7 @@
  */
 import { createRng } from '../../../shared/data/random';
 import { TrainerError, TrainerErrorCode } from '../../../shared/model/trainer-errors';
-import { createEngine, LIVE_EVAL } from './run-engines';
+import { createEngine, LIVE_EVAL } from '../../../shared/training/run-engines';
 import type { ProbeRequest, ProbeResult, TrainingSet } from './trainer-api';
 
 /** Untimed steps after the first (JIT and memory settle); then timed steps until the budget is spent. */
