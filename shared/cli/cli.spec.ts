@@ -60,7 +60,8 @@ describe('command line (in process)', () => {
     const ck = decodeCheckpoint(new Uint8Array(readFileSync(res.checkpointPath)));
     expect(ck.family).toBe('ngram');
     const { table, output } = await runEvaluation(parseEvaluateArgs([res.checkpointPath, ...evalArgs])!);
-    expect(table).toContain('Held-out (exact)');
+    expect(table).toContain('Kneser–Ney n-gram: held-out (exact)');
+    expect(table).toContain('bits/char (end-of-word counted)');
     if (output.result.family !== 'ngram') throw new Error('expected an n-gram result');
     // The n-gram's probabilities over all strings sum to 1, so its mass on the corpus words is below 1 (closed form).
     expect(output.result.crossEntropy.modelMass).toBeLessThan(1);

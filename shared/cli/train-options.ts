@@ -35,6 +35,8 @@ export interface TrainOptions {
   resume: string | null;
   keepCase: boolean;
   allowedChars: string | null;
+  /** Held-out words for the validation figures from a file; the corpus is then not split unless --split is given. */
+  validationFile: string | null;
   quiet: boolean;
 }
 
@@ -48,6 +50,8 @@ Corpus
   --allowed-chars <chars>    drop words with characters outside this list
   --split <a,b,c>            train,validation,test shares                           (0.8,0.1,0.1)
   --split-seed <n>           seed of the deterministic split                        (1)
+  --validation-file <file>   validation words from this file (same format); the corpus is
+                             then used whole for training unless --split is given
 Model
   --model ssm|gru|ngram      stochastic state-space model, GRU baseline, KN n-gram  (ssm)
   --state-size <d>           state (and noise) size; also the GRU's state size      (8)
@@ -69,7 +73,9 @@ Training
   -k, --samples <K>          importance samples per word (IWAE bound)                (8)
   --warmup-steps <n>         warm-up of the prior/posterior terms (not a bound meanwhile) (0)
   --seed <n>                 seed of weights, batches and noise                      (1)
-  --eval-every <n>           validation bound every n steps, 0 = only at the end     (200)
+  --eval-every <n>           validation figure every n steps, 0 = only at the end    (200)
+                             (on a hash-random subset of at most 200 validation words, the
+                             same for every run of the corpus)
   --eval-k <K>               K of the validation bound                               (64)
   --checkpoint-every <n>     also save the checkpoint every n steps, 0 = at the end  (0)
   --resume <checkpoint>      continue a run from its checkpoint (same settings)
@@ -108,7 +114,7 @@ export function parseTrainArgs(argv: string[]): TrainOptions | null {
       discount: { type: 'string' }, seed: { type: 'string' }, 'split-seed': { type: 'string' }, split: { type: 'string' },
       'eval-every': { type: 'string' }, 'eval-k': { type: 'string' }, 'checkpoint-every': { type: 'string' },
       backend: { type: 'string' }, resume: { type: 'string' }, 'keep-case': { type: 'boolean' },
-      'allowed-chars': { type: 'string' }, quiet: { type: 'boolean' }, help: { type: 'boolean', short: 'h' },
+      'allowed-chars': { type: 'string' }, 'validation-file': { type: 'string' }, quiet: { type: 'boolean' }, help: { type: 'boolean', short: 'h' },
     },
   });
   if (v.help) return null;
@@ -119,7 +125,7 @@ export function parseTrainArgs(argv: string[]): TrainOptions | null {
   if (regime !== 'token' && regime !== 'type') throw new Error(`--regime must be token or type (got "${v.regime}").`);
   const backend = (v.backend ?? 'wasm') as 'wasm' | 'cpu';
   if (backend !== 'wasm' && backend !== 'cpu') throw new Error(`--backend must be wasm or cpu (got "${v.backend}").`);
-  const shareParts = (v.split ?? '0.8,0.1,0.1').split(',').map(Number);
+  const shareParts = (v.split ?? (v['validation-file'] ? '1,0,0' : '0.8,0.1,0.1')).split(',').map(Number);
   if (shareParts.length !== 3 || shareParts.some((x) => !Number.isFinite(x) || x < 0)) {
     throw new Error(`--split must be three shares like 0.8,0.1,0.1 (got "${v.split}").`);
   }
@@ -153,6 +159,7 @@ export function parseTrainArgs(argv: string[]): TrainOptions | null {
     resume: v.resume ?? null,
     keepCase: v['keep-case'] ?? false,
     allowedChars: v['allowed-chars'] ?? null,
+    validationFile: v['validation-file'] ?? null,
     quiet: v.quiet ?? false,
   };
 }

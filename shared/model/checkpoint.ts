@@ -28,6 +28,8 @@ export interface Checkpoint {
   optimizer?: NamedWeights;
   /** ISO date-time. */
   createdAt: string;
+  /** How to rebuild the training words (shared/data/training-words.ts); absent in older checkpoints. */
+  trainingWords?: unknown;
 }
 
 export type CheckpointErrorCode = 'BAD_MAGIC' | 'UNSUPPORTED_VERSION' | 'TRUNCATED' | 'CORRUPT' | 'SHAPE_MISMATCH';
@@ -55,6 +57,7 @@ interface Header {
   step: number;
   seed: number | string;
   createdAt: string;
+  trainingWords?: unknown;
   tensors: ManifestEntry[];
   payloadFloats: number;
 }
@@ -89,6 +92,7 @@ export function encodeCheckpoint(ck: Omit<Checkpoint, 'formatVersion'> & { forma
     step: ck.step,
     seed: ck.seed,
     createdAt: ck.createdAt,
+    ...(ck.trainingWords !== undefined ? { trainingWords: ck.trainingWords } : {}),
     tensors,
     payloadFloats,
   };
@@ -177,6 +181,7 @@ export function decodeCheckpoint(bytes: Uint8Array): Checkpoint {
     weights,
     ...(hasOptimizer ? { optimizer } : {}),
     createdAt: header.createdAt,
+    ...(header.trainingWords !== undefined ? { trainingWords: header.trainingWords } : {}),
   };
 }
 

@@ -10,6 +10,7 @@ import { alphabetFromChars, encodeBatch, type Alphabet } from '../../../shared/d
 import { createRng, type Rng } from '../../../shared/data/random';
 import { gruLogProbs, heldOutFigures, ngramLogProbs } from '../../../shared/eval/baseline-figures';
 import { heldOutSample } from '../../../shared/eval/evaluation-report';
+import { LIVE_VALIDATION_WORDS } from '../../../shared/eval/held-out-subset';
 import { noiseInformation } from '../../../shared/eval/noise-information';
 import { gruPredictiveEntropy, ssmObservationEntropy } from '../../../shared/eval/observation-entropy';
 import { drawCategorical, sampleWords } from '../../../shared/eval/samples';
@@ -24,7 +25,7 @@ import { TrainerError, TrainerErrorCode } from '../../../shared/model/trainer-er
 import type { EvaluationFigures, TrainerSettings, TrainingSet } from './trainer-api';
 
 /** Validation budgets during training (the tight estimate of the evaluation page uses far larger ones). */
-export const LIVE_EVAL = { words: 64, k: 16, miWords: 12, miDraws: 64, entropyWords: 32, samples: 6 } as const;
+export const LIVE_EVAL = { words: LIVE_VALIDATION_WORDS, k: 16, miWords: 12, miDraws: 64, entropyWords: 32, samples: 6 } as const;
 
 /** `bitsPerChar`: minus the step's training bound (or exact log-likelihood) per character, bits — a cost, lower is better. */
 export interface StepFigures { bitsPerChar: number; isBound: boolean }
