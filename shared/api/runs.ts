@@ -83,8 +83,8 @@ export const ssmModelSchema = z
 export const gruModelSchema = z
   .object({
     stateSize: whole('a state size', 1, 256),
-    embedSize: whole('an embedding size', 1, 512),
-    obsHidden: whole('an observation width (0 = linear)', 0, 1024),
+    embeddingSize: whole('an embedding size', 1, 512),
+    observationHidden: whole('an observation width (0 = linear)', 0, 1024),
   })
   .strict();
 

@@ -111,7 +111,7 @@ export async function runTraining(o: TrainOptions, progress: ProgressSink = proc
       dispose = () => { trainer.dispose(); model.dispose(); };
     } else {
       const settings: GruSettings = resumeCk ? resumeCk.settings as GruSettings
-        : { vocabSize: alphabet.size, stateSize: o.stateSize, embedSize: o.embeddingSize, obsHidden: o.observationHidden };
+        : { vocabSize: alphabet.size, stateSize: o.stateSize, embeddingSize: o.embeddingSize, observationHidden: o.observationHidden };
       const model = new GruLanguageModel(settings, o.seed);
       if (resumeCk) model.setWeights(resumeCk.weights);
       const trainer = new GruTrainer(model, { learningRate: o.learningRate, clipNorm: o.clipNorm });

@@ -118,7 +118,7 @@ describe('noise mutual information', () => {
 describe('observation entropy, tight estimate, samples', () => {
   it('gives observation entropies in [0, log V] for the SSM and the GRU baseline', () => {
     const ssm = noLeak(() => ssmObservationEntropy(model, words, alphabet, { seed: 1 }));
-    const gru = new GruLanguageModel({ vocabSize: alphabet.size, stateSize: 4, embedSize: 4, obsHidden: 0 }, 1);
+    const gru = new GruLanguageModel({ vocabSize: alphabet.size, stateSize: 4, embeddingSize: 4, observationHidden: 0 }, 1);
     const base = noLeak(() => gruPredictiveEntropy(gru, words, alphabet));
     gru.dispose();
     for (const e of [ssm, base]) {

@@ -5,6 +5,7 @@
  * Framework-free: runs unchanged in the browser, the worker and Node.
  */
 import type { NamedWeights } from './params';
+import { renameLegacySettingKeys } from './settings-keys';
 
 export const CHECKPOINT_MAGIC = 'NWCK';
 export const CHECKPOINT_FORMAT_VERSION = 1;
@@ -174,7 +175,8 @@ export function decodeCheckpoint(bytes: Uint8Array): Checkpoint {
   return {
     formatVersion: version,
     family: header.family,
-    settings: header.settings,
+    // Older GRU checkpoints spelled two keys differently (settings-keys.ts).
+    settings: header.family === 'gru' ? renameLegacySettingKeys(header.settings) : header.settings,
     alphabet: header.alphabet,
     step: header.step,
     seed: header.seed,

@@ -107,7 +107,7 @@ export function createRunRequest(v: RunFormValue): CreateRunRequest {
     return { ...base, family: 'ngram', settings: { model: { order: +m.order, discount: null }, training, ...split } };
   }
   if (m.family === 'gru') {
-    return { ...base, family: 'gru', settings: { model: { stateSize: +m.stateSize, embedSize: +m.embeddingSize, obsHidden: +m.observationHidden }, training, ...split } };
+    return { ...base, family: 'gru', settings: { model: { stateSize: +m.stateSize, embeddingSize: +m.embeddingSize, observationHidden: +m.observationHidden }, training, ...split } };
   }
   return {
     ...base, family: 'ssm',

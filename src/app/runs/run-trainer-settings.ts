@@ -29,7 +29,7 @@ export function trainerSettingsOf(run: Pick<RunDto, 'family' | 'settings'>): Tra
   }
   if (run.family === 'gru') {
     const m = (run.settings as GruRunSettings).model;
-    return { ...base, stateSize: m.stateSize, embeddingSize: m.embedSize, observationHidden: m.obsHidden };
+    return { ...base, stateSize: m.stateSize, embeddingSize: m.embeddingSize, observationHidden: m.observationHidden };
   }
   return { ...base, order: (run.settings as NgramRunSettings).model.order, steps: 0 };
 }
@@ -56,7 +56,7 @@ export function trainingSetOf(run: Pick<RunDto, 'settings' | 'alphabet'>, corpus
 export function parameterCountOf(s: TrainerSettings, vocabSize: number): number | null {
   if (s.family === 'ngram') return null;
   if (s.family === 'gru') {
-    return countParams(gruSpecs({ vocabSize, stateSize: s.stateSize, embedSize: s.embeddingSize, obsHidden: s.observationHidden }));
+    return countParams(gruSpecs({ vocabSize, stateSize: s.stateSize, embeddingSize: s.embeddingSize, observationHidden: s.observationHidden }));
   }
   return ssmParameterCount({
     stateSize: s.stateSize, vocabSize, generativeFlow: s.generativeFlow.map((kind) => ({ kind })),

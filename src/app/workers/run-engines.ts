@@ -129,7 +129,7 @@ function ssmEngine(c: EngineContext, ck: Checkpoint | null): RunEngine {
 function gruEngine(c: EngineContext, ck: Checkpoint | null): RunEngine {
   const { s, alphabet } = c;
   const settings: GruSettings = ck ? (ck.settings as GruSettings)
-    : { vocabSize: alphabet.size, stateSize: s.stateSize, embedSize: s.embeddingSize, obsHidden: s.observationHidden };
+    : { vocabSize: alphabet.size, stateSize: s.stateSize, embeddingSize: s.embeddingSize, observationHidden: s.observationHidden };
   const model = new GruLanguageModel(settings, s.seed);
   let trainer: GruTrainer;
   try {
