@@ -6,13 +6,14 @@
  */
 import type { NamedWeights } from './params';
 import { renameLegacySettingKeys } from './settings-keys';
+import { MODEL_FAMILIES, type ModelFamilyName } from './settings-rules';
 
 export const CHECKPOINT_MAGIC = 'NWCK';
 export const CHECKPOINT_FORMAT_VERSION = 1;
 const PREFIX_BYTES = 12;
 
-export type ModelFamily = 'ssm' | 'gru' | 'ngram';
-const FAMILIES: readonly ModelFamily[] = ['ssm', 'gru', 'ngram'];
+export type ModelFamily = ModelFamilyName;
+const FAMILIES: readonly ModelFamily[] = MODEL_FAMILIES;
 
 export interface Checkpoint {
   formatVersion: number;

@@ -19,6 +19,7 @@
  * All probabilities are exact and sum to one over the V symbols in every context, seen or not.
  */
 import type { Alphabet } from '../data/encode';
+import { isKnDiscount, KN_DISCOUNT_RANGE, SETTING_LIMITS } from './settings-rules';
 
 export interface NgramWordCount { word: string; count: number }
 
@@ -81,11 +82,12 @@ export class KneserNeyModel {
 
   static estimate(words: NgramWordCount[], alphabet: Alphabet, options: NgramOptions): KneserNeyModel {
     const order = options.order;
-    if (!Number.isInteger(order) || order < 1 || order > 6) {
-      throw new Error(`The n-gram order must be a whole number from 1 to 6 (got ${order}).`);
+    const [minOrder, maxOrder] = SETTING_LIMITS.ngramOrder;
+    if (!Number.isInteger(order) || order < minOrder || order > maxOrder) {
+      throw new Error(`The n-gram order must be a whole number from ${minOrder} to ${maxOrder} (got ${order}).`);
     }
-    if (options.discount !== undefined && !(options.discount > 0 && options.discount <= 1)) {
-      throw new Error(`The fixed discount must be in (0, 1] (got ${options.discount}).`);
+    if (options.discount !== undefined && !isKnDiscount(options.discount)) {
+      throw new Error(`The fixed discount must be in ${KN_DISCOUNT_RANGE.text} (got ${options.discount}).`);
     }
     if (words.length === 0) throw new Error('The corpus is empty: give at least one word to fit the n-gram model.');
     const charIds = new Map(alphabet.chars.map((c, i) => [c, i + 1]));
