@@ -141,6 +141,7 @@ export async function runTraining(o: TrainOptions, progress: ProgressSink = proc
       validation.push(validate());
       save(checkpoint());
     } finally {
+      bar?.stop();
       dispose();
     }
   }
