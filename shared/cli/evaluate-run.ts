@@ -85,7 +85,8 @@ export async function runEvaluation(o: EvaluateOptions): Promise<{ output: Evalu
   const heldOut = o.heldOutFile ? loadHeldOutFile(o.heldOutFile, alphabet, { keepCase: split.keepCase, option: '--held-out-file' })
     : corpus.parts[o.heldOutSplit];
   if (heldOut.length === 0) {
-    throw new Error(o.heldOutFile ? `The held-out file "${o.heldOutFile}" has no words.` : `The ${o.heldOutSplit} split is empty; change --split or --held-out.`);
+    throw new Error(o.heldOutFile ? `The held-out file "${o.heldOutFile}" has no words.`
+      : `The ${o.heldOutSplit} split is empty; ${rec?.validationFile ? `the run trained on the whole corpus and validated on "${rec.validationFile}": give --held-out-file <file>` : 'change --split or --held-out, or give --held-out-file <file>'}.`);
   }
   const data: EvaluationData = { alphabet, corpus: corpus.words, train, heldOut };
   const ngram = KneserNeyModel.estimate(train, alphabet, { order: o.ngramOrder });
