@@ -55,6 +55,8 @@ describe('evaluate on the model\'s own words', () => {
   it('scores a held-out file, writes per-word JSON lines and error bars', async () => {
     const run = await runTraining(parseTrainArgs(['--corpus', corpus, '--model', 'gru', '--steps', '2', '--validation-file', heldFile, '--out', join(dir, 'gru'), ...small])!, quietSink);
     expect(run.metrics.vocabulary.train).toBe(unique.length); // --validation-file: the corpus is trained on whole
+    await expect(runEvaluation(parseEvaluateArgs([run.checkpointPath, '--corpus', corpus, ...evalSmall])!))
+      .rejects.toThrow(/validated on "held.txt": give --held-out-file/);
     const perWord = join(dir, 'per-word.jsonl');
     const { output } = await runEvaluation(parseEvaluateArgs([run.checkpointPath, '--corpus', corpus, '--held-out-file', heldFile, '--per-word', perWord, ...evalSmall])!);
     if (output.result.family !== 'gru') throw new Error('expected a GRU result');
