@@ -76,7 +76,7 @@ export async function ssmStepCase(c: SsmCaseSettings, words: WordCount[], alphab
 
 export async function gruStepCase(name: string, stateSize: number, batchSize: number, words: WordCount[], alphabet: Alphabet,
                                   steps: number, warmup: number): Promise<StepCase> {
-  const model = new GruLanguageModel({ vocabSize: alphabet.size, stateSize, embedSize: 16, obsHidden: 0 }, 1);
+  const model = new GruLanguageModel({ vocabSize: alphabet.size, stateSize, embeddingSize: 16, observationHidden: 0 }, 1);
   const trainer = new GruTrainer(model, { learningRate: 0.01, clipNorm: 5 });
   const batcher = createBatcher(words, { batchSize, regime: 'token', rng: createRng(2) });
   const batches = Array.from({ length: steps + warmup + 1 }, () => encodeBatch(batcher.next(), alphabet));

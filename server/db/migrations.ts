@@ -8,6 +8,7 @@ import { Migration20261202024511Corpora } from '../migrations/Migration202612020
 import { Migration20261202024709Runs } from '../migrations/Migration20261202024709_runs';
 import { Migration20261202033904EvaluationsGridsReports } from '../migrations/Migration20261202033904_evaluations_grids_reports';
 import { Migration20261205102200RunnersB } from '../migrations/Migration20261205102200_runners_b';
+import { Migration20261205103000SettingsKeysG } from '../migrations/Migration20261205103000_settings_keys_g';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261202000000_foundation', class: Migration20261202000000Foundation },
@@ -15,4 +16,5 @@ export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261202024709_runs', class: Migration20261202024709Runs },
   { name: 'Migration20261202033904_evaluations_grids_reports', class: Migration20261202033904EvaluationsGridsReports },
   { name: 'Migration20261205102200_runners_b', class: Migration20261205102200RunnersB },
+  { name: 'Migration20261205103000_settings_keys_g', class: Migration20261205103000SettingsKeysG },
 ];

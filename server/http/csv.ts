@@ -1,12 +1,16 @@
 /**
- * The one CSV writer of the server: every CSV download goes through `csvCell` / `toCsv`, so every cell is
- * quoted per RFC 4180 and guarded against spreadsheet formulas.
+ * The one CSV writer of the server: every CSV download goes through `toCsv`, which writes with the
+ * `csv-stringify` package (RFC 4180 quoting) and applies the formula guard below as its cast, so every cell is
+ * guarded against spreadsheet formulas.
  *
  * Formula guard (OWASP, "CSV Injection"): a spreadsheet treats a cell that begins with `=`, `+`, `-`, `@`,
  * a tab or a carriage return as a formula, so a run name such as `=HYPERLINK(...)` typed by a bench member
  * could act when someone opens the export. Such a cell gets a leading single quote (the spreadsheet then
  * shows it as text) and is always wrapped in double quotes. Plain numbers (`-3.2`, `+4`, `1e-3`) stay numbers.
  */
+
+import type { CastReturnObject } from 'csv-stringify';
+import { stringify, type Options } from 'csv-stringify/sync';
 
 /** A decimal number as JavaScript's `String(n)` or a person writes it: optional sign, digits, point, exponent. */
 const PLAIN_NUMBER = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?$/;
@@ -22,17 +26,29 @@ export function spreadsheetSafe(value: string | number): string {
 }
 
 /**
- * One CSV field: formula-guarded, line breaks flattened to spaces (a row stays one line), and quoted when it
- * holds a comma, a quote, edge spaces or was guarded; quotes doubled (RFC 4180 section 2, rules 5–7).
+ * The cast `csv-stringify` applies to every cell: formula guard, line breaks flattened to spaces (a row stays
+ * one line), and quotes forced on a guarded cell or one with edge spaces; the package quotes commas and quotes
+ * and doubles inner quotes (RFC 4180 section 2, rules 5–7).
  */
-export function csvCell(value: string | number): string {
+function castCell(value: string | number): CastReturnObject {
   const safe = spreadsheetSafe(value);
   const guarded = safe !== String(value);
   const flat = safe.replace(/\r\n|\r|\n/g, ' ');
-  return guarded || /[",]|^\s|\s$/.test(flat) ? `"${flat.replace(/"/g, '""')}"` : flat;
+  return { value: flat, quoted: guarded || /^\s|\s$/.test(flat) };
+}
+
+const OPTIONS: Options = {
+  record_delimiter: 'windows',
+  eof: true,
+  cast: { string: (v) => castCell(v), number: (v) => castCell(v) },
+};
+
+/** One CSV field as it appears in `toCsv`'s output. */
+export function csvCell(value: string | number): string {
+  return stringify([[value]], { ...OPTIONS, eof: false });
 }
 
 /** Rows as CSV text: fields joined by commas, every record ended by CRLF (RFC 4180 section 2.1). */
 export function toCsv(rows: readonly (readonly (string | number)[])[]): string {
-  return rows.map((row) => row.map(csvCell).join(',')).join('\r\n') + '\r\n';
+  return stringify(rows.map((r) => [...r]), OPTIONS);
 }

@@ -67,7 +67,7 @@ benchRouteTable.push(
   { method: 'get', path: () => `/grids/${madeUpId}/verdict`, minRole: 'viewer', allowedStatus: 404 },
   {
     method: 'post', path: () => '/grids', minRole: 'member',
-    body: { name: 'Sizes', corpusId: madeUpId, family: 'gru', baseSettings: { model: { embedSize: 4, obsHidden: 0 }, training: { steps: 10, batchSize: 4, learningRate: 0.01 } }, axes: [{ key: 'model.stateSize', values: [8, 16] }] },
+    body: { name: 'Sizes', corpusId: madeUpId, family: 'gru', baseSettings: { model: { embeddingSize: 4, observationHidden: 0 }, training: { steps: 10, batchSize: 4, learningRate: 0.01 } }, axes: [{ key: 'model.stateSize', values: [8, 16] }] },
   },
   { method: 'delete', path: () => `/grids/${madeUpId}`, minRole: 'member' },
   { method: 'post', path: () => `/corpora/${madeUpId}/learnability`, minRole: 'member', body: { budgetSteps: 10 } },

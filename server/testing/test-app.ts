@@ -33,8 +33,15 @@ export interface TestApp {
   /** The run queue (embedded, or BullMQ when the env sets QUEUE_URL) and the event bus of server-sent events. */
   runQueue: RunQueue;
   runEvents: RunEventBus;
+  /** Errors the app logged (unexpected 500s and failed background sends), oldest first. */
+  readonly serverErrors: unknown[];
+  /** Returns the logged server errors and forgets them: call it in a test that provokes a 500 on purpose. */
+  takeServerErrors(): unknown[];
+  /** Closes the database and removes the folder; fails when server errors were logged that no test took. */
   close(): Promise<void>;
 }
+
+const describeError = (e: unknown) => (e instanceof Error ? e.stack ?? e.message : JSON.stringify(e));
 
 export function testConfig(dir: string, env: Record<string, string> = {}): Config {
   return loadConfig({
@@ -79,10 +86,18 @@ export async function createTestApp(env: Record<string, string> = {}): Promise<T
     dir,
     runQueue,
     runEvents,
+    serverErrors: errors,
+    takeServerErrors() {
+      return errors.splice(0, errors.length);
+    },
     async close() {
       await runQueue.close();
       await orm.close(true);
       rmSync(dir, { recursive: true, force: true });
+      if (errors.length > 0) {
+        throw new Error(`${errors.length} unexpected server error(s) were logged (answered 500 or failed in the background); ` +
+          `a test that expects one must call takeServerErrors(). First:\n${describeError(errors[0])}`);
+      }
     },
   };
 }

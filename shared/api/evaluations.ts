@@ -75,7 +75,11 @@ export function evaluationSettingsKey(s: StoredEvaluationSettings): string {
   return JSON.stringify(sorted);
 }
 
-const heldOutFiguresSchema = z.object({ bitsPerWord: fin, bitsPerChar: fin, words: count });
+/** Standard errors (shared/eval/standard-error.ts); null where undefined (fewer than 2 words). Optional: older results lack them. */
+const se = z.number().nullable();
+const repeatErrorsSchema = z.object({ words: se, repeats: se, total: se });
+const heldOutFiguresSchema = z.object({ bitsPerWord: fin, bitsPerChar: fin, words: count,
+  standardError: z.object({ bitsPerWord: se, bitsPerChar: se }).optional() });
 const crossEntropySchema = z.object({ crossEntropyBits: fin, dataEntropyBits: fin, klGapBits: fin, modelMass: fin });
 const observationEntropySchema = z.object({ meanBits: fin, perWord: z.array(z.object({ word, bits: fin })) });
 
@@ -90,6 +94,7 @@ const ssmResultsSchema = z.object({
   tight: z.object({
     k: count, repeats: count, bitsPerWord: fin, bitsPerChar: fin,
     repeatBitsPerWord: z.array(fin), repeatBitsPerChar: z.array(fin), stdBitsPerWord: fin, stdBitsPerChar: fin,
+    standardError: z.object({ bitsPerWord: repeatErrorsSchema, bitsPerChar: repeatErrorsSchema }).optional(),
   }),
   crossEntropy: z.object({ shared: crossEntropySchema, iwae: crossEntropySchema.nullable(), samples: count, iwaeK: count }),
   noise: z.object({

@@ -1,13 +1,14 @@
 /**
  * Runs, metric points and checkpoints: the request schemas (zod) and answer types of
  * `/api/benches/:benchId/runs/...`, shared so the new-run form shows the same messages the server sends.
- * No model code is imported here (that would pull TF.js into every page); the limits mirror
- * `shared/model/ssm-settings.ts` and a spec checks that they agree.
+ * No model code is imported here (that would pull TF.js into every page); families, flow kinds and limits
+ * come from `shared/model/settings-rules.ts` (plain constants), and a spec checks that everything agrees.
  */
 import { z } from 'zod';
+import { FLOW_KIND_NAMES, KN_DISCOUNT_RANGE, MODEL_FAMILIES, SETTING_LIMITS } from '../model/settings-rules';
 import { runPlacementSchema, type RunLiveProgress, type RunPlacement } from './runners';
 
-export const RUN_FAMILIES = ['ssm', 'gru', 'ngram'] as const;
+export const RUN_FAMILIES = MODEL_FAMILIES;
 export type RunFamily = (typeof RUN_FAMILIES)[number];
 
 export const RUN_STATUSES = ['queued', 'training', 'paused', 'finished', 'stopped', 'failed'] as const;
@@ -36,7 +37,7 @@ export function canMoveRun(from: RunStatus, to: RunStatus): boolean {
 /** Statuses in which a worker may be busy with the run (it cannot be archived or deleted then). */
 export const ACTIVE_RUN_STATUSES: readonly RunStatus[] = ['queued', 'training', 'paused'];
 
-export const FLOW_LAYER_KINDS = ['shift', 'diag', 'tril', 'coupling'] as const;
+export const FLOW_LAYER_KINDS = FLOW_KIND_NAMES;
 export const CHECKPOINT_REASONS = ['auto', 'stop', 'manual', 'import'] as const;
 export type CheckpointReason = (typeof CHECKPOINT_REASONS)[number];
 
@@ -54,6 +55,9 @@ const whole = (name: string, min: number, max: number) =>
     .min(min, `Give ${name} of at least ${min}.`)
     .max(max, `Give ${name} of at most ${max}.`);
 
+/** A whole-number setting with its limits from shared/model/settings-rules.ts. */
+const limited = (name: string, key: keyof typeof SETTING_LIMITS) => whole(name, SETTING_LIMITS[key][0], SETTING_LIMITS[key][1]);
+
 const positive = (name: string, max: number) =>
   z
     .number({ error: `Give ${name} as a number.` })
@@ -64,38 +68,39 @@ export const flowStackSchema = z
   .array(z.object({ kind: z.enum(FLOW_LAYER_KINDS, { error: `Choose each flow layer from ${FLOW_LAYER_KINDS.join(', ')}.` }) }).strict(), {
     error: 'Give the flow as a list of layers, e.g. [{ "kind": "diag" }].',
   })
-  .min(1, 'A flow needs at least one layer.')
-  .max(8, 'Use at most 8 layers in a flow.');
+  .min(SETTING_LIMITS.flowLayers[0], 'A flow needs at least one layer.')
+  .max(SETTING_LIMITS.flowLayers[1], `Use at most ${SETTING_LIMITS.flowLayers[1]} layers in a flow.`);
 
 /** The state-space model's shape (MODEL.md sections 2–4); the vocabulary size comes from the corpus. */
 export const ssmModelSchema = z
   .object({
-    stateSize: whole('a state size', 1, 256),
+    stateSize: limited('a state size', 'stateSize'),
     generativeFlow: flowStackSchema,
     inferenceFlow: flowStackSchema,
-    flowHidden: whole('a flow network width', 1, 1024),
-    observationHidden: whole('an observation width (0 = linear)', 0, 1024),
-    embeddingSize: whole('an embedding size', 1, 512),
-    encoderSize: whole('an encoder size', 1, 1024),
-    proposalHidden: whole('a proposal width', 1, 1024),
+    flowHidden: limited('a flow network width', 'flowHidden'),
+    observationHidden: limited('an observation width (0 = linear)', 'observationHidden'),
+    embeddingSize: limited('an embedding size', 'embeddingSize'),
+    encoderSize: limited('an encoder size', 'encoderSize'),
+    proposalHidden: limited('a proposal width', 'proposalHidden'),
   })
   .strict();
 
 /** The teacher-forced GRU baseline (MODEL.md section 6). */
 export const gruModelSchema = z
   .object({
-    stateSize: whole('a state size', 1, 256),
-    embedSize: whole('an embedding size', 1, 512),
-    obsHidden: whole('an observation width (0 = linear)', 0, 1024),
+    stateSize: limited('a state size', 'stateSize'),
+    embeddingSize: limited('an embedding size', 'embeddingSize'),
+    observationHidden: limited('an observation width (0 = linear)', 'observationHidden'),
   })
   .strict();
 
 /** The Kneser–Ney n-gram baseline; `discount: null` = modified KN with estimated discounts. */
 export const ngramModelSchema = z
   .object({
-    order: whole('an n-gram order', 1, 6),
+    order: limited('an n-gram order', 'ngramOrder'),
     discount: z.number({ error: 'Give the discount as a number, or null to estimate it.' })
-      .gt(0, 'Give a discount above 0.').lt(1, 'Give a discount below 1.').nullable().default(null),
+      .gt(KN_DISCOUNT_RANGE.above, `Give a discount above ${KN_DISCOUNT_RANGE.above}.`)
+      .lte(KN_DISCOUNT_RANGE.atMost, `Give a discount of at most ${KN_DISCOUNT_RANGE.atMost}.`).nullable().default(null),
   })
   .strict();
 
@@ -104,7 +109,7 @@ export const trainingSchema = z
     steps: whole('a number of steps', 1, 1_000_000),
     batchSize: whole('a batch size', 1, 4096),
     /** Importance samples K per word (state-space model only). */
-    samples: whole('a number of samples K', 1, 1024).default(8),
+    samples: limited('a number of samples K', 'samples').default(8),
     learningRate: positive('a learning rate', 1),
     /** Clip the gradient's global norm to this value; 0 = no clipping. */
     clipNorm: z.number({ error: 'Give the clipping norm as a number (0 = off).' }).min(0, 'Give a clipping norm of 0 (off) or more.').max(1e6, 'Give a clipping norm of at most 1000000.').default(0),

@@ -60,7 +60,8 @@ describe('command line (in process)', () => {
     const ck = decodeCheckpoint(new Uint8Array(readFileSync(res.checkpointPath)));
     expect(ck.family).toBe('ngram');
     const { table, output } = await runEvaluation(parseEvaluateArgs([res.checkpointPath, ...evalArgs])!);
-    expect(table).toContain('Held-out (exact)');
+    expect(table).toContain('Kneser–Ney n-gram: held-out (exact)');
+    expect(table).toContain('bits/char (end-of-word counted)');
     if (output.result.family !== 'ngram') throw new Error('expected an n-gram result');
     // The n-gram's probabilities over all strings sum to 1, so its mass on the corpus words is below 1 (closed form).
     expect(output.result.crossEntropy.modelMass).toBeLessThan(1);
@@ -76,16 +77,23 @@ describe('command line (in process)', () => {
       '--resume', first.checkpointPath, ...small])!, quietSink)).rejects.toThrow(/holds a ssm checkpoint but --model is gru/);
   });
 
-  it('renders the progress bar with share, count and ETA', () => {
+  it('draws the terminal progress bar with share, count and note, and prints lines elsewhere', () => {
     expect(formatDuration(75)).toBe('1m15s');
     expect(formatDuration(3725)).toBe('1h02m');
-    const bar = new ProgressBar(10, quietSink, 10);
-    const start = Date.now();
-    // after 5 of 10 steps in 20 s, the remaining 5 steps take another 20 s (linear extrapolation)
-    const text = bar.render(5, 'bound 3.1 bits/char', start + 20_000);
-    expect(text).toContain('[#####-----]');
-    expect(text).toContain(' 50% 5/10');
-    expect(text).toMatch(/ETA (19|20)s/);
+    const out: string[] = [];
+    const tty = { write: (t: string) => { out.push(t); return true; }, isTTY: true };
+    const bar = new ProgressBar(10, tty, 10);
+    bar.update(5, 'bound 3.1 bits/char');
+    bar.update(10, 'done');
+    const text = out.join('');
+    expect(text).toContain('[#####-----] 50% 5/10');
+    expect(text).toContain('bound 3.1 bits/char');
+    expect(text).toContain('[##########] 100% 10/10');
+    const lines: string[] = [];
+    const log = new ProgressBar(10, { write: (t: string) => { lines.push(t); return true; }, isTTY: false });
+    for (let i = 1; i <= 10; i++) log.update(i, `step ${i}`);
+    expect(lines).toHaveLength(10);
+    expect(lines.at(-1)).toMatch(/^100% 10\/10 .* step 10\n$/);
   });
 
   it('refuses a corpus with characters the checkpoint never saw, with a message that says what to do', async () => {

@@ -43,7 +43,7 @@ export function checkWordsFit(words: readonly WordCount[], chars: readonly strin
   const bad = words.filter((w) => Array.from(w.word).some((c) => !known.has(c)));
   if (bad.length > 0) {
     throw new Error(`${bad.length} corpus word(s) use characters the model never saw (e.g. "${bad[0]?.word}"); ` +
-      'evaluate on a corpus with the same alphabet, or restrict it with --allowed-chars.');
+      `evaluate on the corpus the model was trained on (its characters: "${chars.join('')}").`);
   }
   return alphabet;
 }

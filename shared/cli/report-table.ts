@@ -1,25 +1,35 @@
 /** The evaluation as a plain-text table (figure, value, unit), numbers right-aligned. */
 import type { EvaluationOutput } from './evaluate-run';
+import type { HeldOutFigures } from '../eval/baseline-figures';
 import type { BaselineFigures } from '../eval/evaluation-report';
 
 type Row = [string, string, string] | null;
+
+/** Bits per character always count the end-of-word symbol. */
+const BPC = 'bits/char (end-of-word counted)';
+const se = (x: number | null | undefined, digits: number) => (x === undefined ? null : `± ${f(x, digits)}`);
+
+/** Held-out rows of one model: bits/char and bits/word, each with its standard error when known. */
+function heldOutRows(label: string, h: HeldOutFigures): Row[] {
+  const e = h.standardError;
+  return [
+    [label, `${f(h.bitsPerChar)}${e ? ` ${se(e.bitsPerChar, 3)}` : ''}`, BPC],
+    [label, `${f(h.bitsPerWord, 2)}${e ? ` ${se(e.bitsPerWord, 2)}` : ''}`, 'bits/word'],
+  ];
+}
 
 const f = (x: number | undefined | null, digits = 3) => (x === undefined || x === null || !Number.isFinite(x) ? '—' : x.toFixed(digits));
 const pct = (x: number) => (x > 0 && x < 0.001 ? (100 * x).toExponential(1) : (100 * x).toFixed(1));
 
 function baselineRows(b: BaselineFigures): Row[] {
-  const rows: Row[] = [
-    ['Unigram characters: held-out', f(b.unigram.bitsPerChar), 'bits/char'],
-  ];
+  const rows: Row[] = [...heldOutRows('Unigram characters: held-out (exact)', b.unigram)];
   if (b.ngram) {
-    rows.push([`Kneser–Ney ${b.ngram.order}-gram: held-out`, f(b.ngram.bitsPerChar), 'bits/char']);
-    rows.push([`Kneser–Ney ${b.ngram.order}-gram: held-out`, f(b.ngram.bitsPerWord, 2), 'bits/word']);
-    rows.push([`Kneser–Ney ${b.ngram.order}-gram: sequence cross entropy`, f(b.ngram.crossEntropy.crossEntropyBits, 2), 'bits/word']);
+    rows.push(...heldOutRows(`Kneser–Ney ${b.ngram.order}-gram: held-out (exact)`, b.ngram));
+    rows.push([`Kneser–Ney ${b.ngram.order}-gram: sequence cross entropy (exact)`, f(b.ngram.crossEntropy.crossEntropyBits, 2), 'bits/word']);
   }
   if (b.gru) {
-    rows.push(['GRU baseline: held-out (exact)', f(b.gru.bitsPerChar), 'bits/char']);
-    rows.push(['GRU baseline: held-out (exact)', f(b.gru.bitsPerWord, 2), 'bits/word']);
-    rows.push(['GRU baseline: sequence cross entropy', f(b.gru.crossEntropy.crossEntropyBits, 2), 'bits/word']);
+    rows.push(...heldOutRows('GRU baseline: held-out (exact)', b.gru));
+    rows.push(['GRU baseline: sequence cross entropy (exact)', f(b.gru.crossEntropy.crossEntropyBits, 2), 'bits/word']);
     rows.push(['GRU baseline: predictive entropy', f(b.gru.predictiveEntropy.meanBits), 'bits/step']);
   }
   return rows;
@@ -30,10 +40,13 @@ export function reportTable(out: EvaluationOutput): string {
   const rows: Row[] = [];
   if (r.family === 'ssm') {
     const t = r.tight;
-    rows.push([`Tight estimate (K = ${t.k}, ${t.repeats} repeats)`, f(t.bitsPerWord, 2), 'bits/word']);
-    rows.push(['  spread over repeats (std)', f(t.stdBitsPerWord, 3), 'bits/word']);
-    rows.push(['Tight estimate', f(t.bitsPerChar), 'bits/char']);
-    rows.push(['  spread over repeats (std)', f(t.stdBitsPerChar, 4), 'bits/char']);
+    const e = t.standardError;
+    rows.push([`Tight estimate (IWAE, K = ${t.k}, ${t.repeats} repeats)`, `${f(t.bitsPerChar)}${e ? ` ${se(e.bitsPerChar.total, 3)}` : ''}`, BPC]);
+    rows.push([`Tight estimate (IWAE, K = ${t.k}, ${t.repeats} repeats)`, `${f(t.bitsPerWord, 2)}${e ? ` ${se(e.bitsPerWord.total, 2)}` : ''}`, 'bits/word']);
+    if (e) {
+      rows.push(['  of which from the per-word spread', f(e.bitsPerChar.words, 4), BPC]);
+      rows.push(['  of which from the repeats', f(e.bitsPerChar.repeats, 4), BPC]);
+    }
     const ce = r.crossEntropy;
     rows.push([`Sequence cross entropy (S = ${ce.samples} shared trajectories)`, f(ce.shared.crossEntropyBits, 2), 'bits/word']);
     if (ce.iwae) rows.push([`Sequence cross entropy (IWAE, K = ${ce.iwaeK})`, f(ce.iwae.crossEntropyBits, 2), 'bits/word']);
@@ -57,8 +70,7 @@ export function reportTable(out: EvaluationOutput): string {
         c.continuations.slice(0, 5).map((x) => `${x.word}${x.ended ? '' : '…'} ${pct(x.weight)}%`).join(', '), '']);
     }
   } else {
-    rows.push([`${r.family === 'gru' ? 'GRU' : 'Kneser–Ney n-gram'}: held-out (exact)`, f(r.heldOut.bitsPerWord, 2), 'bits/word']);
-    rows.push(['Held-out (exact)', f(r.heldOut.bitsPerChar), 'bits/char']);
+    rows.push(...heldOutRows(`${r.family === 'gru' ? 'GRU' : 'Kneser–Ney n-gram'}: held-out (exact)`, r.heldOut));
     rows.push(['Sequence cross entropy (exact)', f(r.crossEntropy.crossEntropyBits, 2), 'bits/word']);
     rows.push(['Corpus entropy H(p_data)', f(r.crossEntropy.dataEntropyBits, 2), 'bits/word']);
     rows.push(['KL gap', f(r.crossEntropy.klGapBits, 2), 'bits/word']);
@@ -71,7 +83,9 @@ export function reportTable(out: EvaluationOutput): string {
   const notes = all.filter((x) => x[2] === '');
   const w0 = Math.max(...body.map((x) => x[0].length));
   const w1 = Math.max(...body.map((x) => x[1].length));
-  const head = `Evaluation of ${out.checkpoint.path} (${out.checkpoint.family}, step ${out.checkpoint.step}) on ${out.corpus}, ${out.heldOutSplit} split`;
-  return [head, '', ...body.map(([a, b, c]) => `${a.padEnd(w0)}  ${b.padStart(w1)}  ${c}`), '',
+  const head = `Evaluation of ${out.checkpoint.path} (${out.checkpoint.family}, step ${out.checkpoint.step}) on ${out.corpus}, ${out.heldOutSplit}${out.heldOutSplit.startsWith('file') ? '' : ' split'}`;
+  const about = [`Held-out: ${out.data.heldOut}; ${out.data.note}.`, `Baselines fitted on ${out.data.trainingWords}.`,
+    'Figures are positive costs (lower is better); ± is a standard error from the per-word spread and the repeats.'];
+  return [head, ...about, '', ...body.map(([a, b, c]) => `${a.padEnd(w0)}  ${b.padStart(w1)}  ${c}`), '',
     ...notes.map(([a, b]) => `${a}: ${b}`)].join('\n') + '\n';
 }

@@ -1,8 +1,9 @@
 /** Command-line options of `npm run train` (every run setting), parsed with node:util's parseArgs. */
 import { parseArgs } from 'node:util';
 import { validateFlowSpec, type FlowSpec } from '../model/flows/flow';
+import { FLOW_KIND_NAMES, isKnDiscount, KN_DISCOUNT_RANGE, MODEL_FAMILIES, NEW_RUN_MODEL_DEFAULTS as D, SETTING_LIMITS, withinLimit, type LimitedSetting, type ModelFamilyName } from '../model/settings-rules';
 
-export type ModelKind = 'ssm' | 'gru' | 'ngram';
+export type ModelKind = ModelFamilyName;
 
 export interface TrainOptions {
   corpus: string;
@@ -35,6 +36,8 @@ export interface TrainOptions {
   resume: string | null;
   keepCase: boolean;
   allowedChars: string | null;
+  /** Held-out words for the validation figures from a file; the corpus is then not split unless --split is given. */
+  validationFile: string | null;
   quiet: boolean;
 }
 
@@ -48,28 +51,32 @@ Corpus
   --allowed-chars <chars>    drop words with characters outside this list
   --split <a,b,c>            train,validation,test shares                           (0.8,0.1,0.1)
   --split-seed <n>           seed of the deterministic split                        (1)
+  --validation-file <file>   validation words from this file (same format); the corpus is
+                             then used whole for training unless --split is given
 Model
   --model ssm|gru|ngram      stochastic state-space model, GRU baseline, KN n-gram  (ssm)
-  --state-size <d>           state (and noise) size; also the GRU's state size      (8)
-  --gen-flow <list>          generative flow layers, e.g. coupling,coupling,diag    (coupling,coupling,diag)
-  --inf-flow <list>          inference flow layers (shift, diag, tril, coupling)    (diag)
-  --flow-hidden <n>          width of the flows' conditioning networks               (32)
-  --obs-hidden <n>           observation MLP width, 0 = linear                       (0)
-  --embedding <n>            character embedding size (inference network / GRU)      (16)
-  --encoder <n>              backward GRU width of the inference network            (64)
-  --proposal-hidden <n>      proposal MLP width                                      (32)
-  --order <n>                n-gram order 1-6                                        (3)
-  --discount <D>             fixed KN discount in (0,1]; default: modified KN
+  --state-size <d>           state (and noise) size; also the GRU's state size      (${D.stateSize})
+  --gen-flow <list>          generative flow layers, e.g. coupling,coupling,diag    (${D.generativeFlow.join(',')})
+  --inf-flow <list>          inference flow layers (${FLOW_KIND_NAMES.join(', ')})    (${D.inferenceFlow.join(',')})
+  --flow-hidden <n>          width of the flows' conditioning networks               (${D.flowHidden})
+  --obs-hidden <n>           observation MLP width, 0 = linear                       (${D.observationHidden})
+  --embedding <n>            character embedding size (inference network / GRU)      (${D.embeddingSize})
+  --encoder <n>              backward GRU width of the inference network            (${D.encoderSize})
+  --proposal-hidden <n>      proposal MLP width                                      (${D.proposalHidden})
+  --order <n>                n-gram order ${SETTING_LIMITS.ngramOrder.join('-')}                                        (${D.ngramOrder})
+  --discount <D>             fixed KN discount in (0, 1]; default: modified KN
 Training
   --steps <n>                optimisation steps                                      (1000)
   --batch-size <n>           words per batch                                         (64)
   --regime token|type        sample words by count or each type equally             (token)
   --learning-rate <x>        Adam step size                                          (0.01)
   --clip-norm <x>            global gradient-norm clipping, 0 = off                  (5)
-  -k, --samples <K>          importance samples per word (IWAE bound)                (8)
+  -k, --samples <K>          importance samples per word (IWAE bound)                (${D.samples})
   --warmup-steps <n>         warm-up of the prior/posterior terms (not a bound meanwhile) (0)
   --seed <n>                 seed of weights, batches and noise                      (1)
-  --eval-every <n>           validation bound every n steps, 0 = only at the end     (200)
+  --eval-every <n>           validation figure every n steps, 0 = only at the end    (200)
+                             (on a hash-random subset of at most 200 validation words, the
+                             same for every run of the corpus)
   --eval-k <K>               K of the validation bound                               (64)
   --checkpoint-every <n>     also save the checkpoint every n steps, 0 = at the end  (0)
   --resume <checkpoint>      continue a run from its checkpoint (same settings)
@@ -82,6 +89,8 @@ Output
 
 const flowList = (text: string, what: string): FlowSpec[] => {
   const spec = text.split(',').map((s) => ({ kind: s.trim() })) as unknown[];
+  const [lo, hi] = SETTING_LIMITS.flowLayers;
+  if (spec.length < lo || spec.length > hi) throw new Error(`The ${what} must have ${lo} to ${hi} layers (got ${spec.length}).`);
   validateFlowSpec(spec, what);
   return spec;
 };
@@ -93,6 +102,11 @@ function num(text: string | undefined, name: string, fallback: number, check: (n
   return n;
 }
 const whole = (min: number) => (n: number) => Number.isInteger(n) && n >= min;
+/** A model setting with its limits from shared/model/settings-rules.ts. */
+function limited(text: string | undefined, name: string, key: LimitedSetting, fallback: number): number {
+  const [lo, hi] = SETTING_LIMITS[key];
+  return num(text, name, fallback, (n) => withinLimit(key, n), `a whole number from ${lo} to ${hi}`);
+}
 
 /** Parses argv (without node and script). Returns null when help was asked for. */
 export function parseTrainArgs(argv: string[]): TrainOptions | null {
@@ -108,18 +122,18 @@ export function parseTrainArgs(argv: string[]): TrainOptions | null {
       discount: { type: 'string' }, seed: { type: 'string' }, 'split-seed': { type: 'string' }, split: { type: 'string' },
       'eval-every': { type: 'string' }, 'eval-k': { type: 'string' }, 'checkpoint-every': { type: 'string' },
       backend: { type: 'string' }, resume: { type: 'string' }, 'keep-case': { type: 'boolean' },
-      'allowed-chars': { type: 'string' }, quiet: { type: 'boolean' }, help: { type: 'boolean', short: 'h' },
+      'allowed-chars': { type: 'string' }, 'validation-file': { type: 'string' }, quiet: { type: 'boolean' }, help: { type: 'boolean', short: 'h' },
     },
   });
   if (v.help) return null;
   if (!v.corpus) throw new Error('Give the corpus file with --corpus <file> (see --help).');
   const model = (v.model ?? 'ssm') as ModelKind;
-  if (!['ssm', 'gru', 'ngram'].includes(model)) throw new Error(`--model must be ssm, gru or ngram (got "${v.model}").`);
+  if (!(MODEL_FAMILIES as readonly string[]).includes(model)) throw new Error(`--model must be one of ${MODEL_FAMILIES.join(', ')} (got "${v.model}").`);
   const regime = (v.regime ?? 'token') as 'token' | 'type';
   if (regime !== 'token' && regime !== 'type') throw new Error(`--regime must be token or type (got "${v.regime}").`);
   const backend = (v.backend ?? 'wasm') as 'wasm' | 'cpu';
   if (backend !== 'wasm' && backend !== 'cpu') throw new Error(`--backend must be wasm or cpu (got "${v.backend}").`);
-  const shareParts = (v.split ?? '0.8,0.1,0.1').split(',').map(Number);
+  const shareParts = (v.split ?? (v['validation-file'] ? '1,0,0' : '0.8,0.1,0.1')).split(',').map(Number);
   if (shareParts.length !== 3 || shareParts.some((x) => !Number.isFinite(x) || x < 0)) {
     throw new Error(`--split must be three shares like 0.8,0.1,0.1 (got "${v.split}").`);
   }
@@ -132,18 +146,18 @@ export function parseTrainArgs(argv: string[]): TrainOptions | null {
     batchSize: num(v['batch-size'], 'batch-size', 64, whole(1), 'a whole number ≥ 1'),
     learningRate: num(v['learning-rate'], 'learning-rate', 0.01, pos, 'a positive number'),
     clipNorm: num(v['clip-norm'], 'clip-norm', 5, (n) => n >= 0, '0 or a positive number'),
-    samples: num(v.samples, 'samples', 8, whole(1), 'a whole number ≥ 1'),
+    samples: limited(v.samples, 'samples', 'samples', D.samples),
     warmupSteps: num(v['warmup-steps'], 'warmup-steps', 0, whole(0), 'a whole number ≥ 0'),
-    stateSize: num(v['state-size'], 'state-size', 8, whole(1), 'a whole number ≥ 1'),
-    generativeFlow: flowList(v['gen-flow'] ?? 'coupling,coupling,diag', 'generative flow (--gen-flow)'),
-    inferenceFlow: flowList(v['inf-flow'] ?? 'diag', 'inference flow (--inf-flow)'),
-    flowHidden: num(v['flow-hidden'], 'flow-hidden', 32, whole(1), 'a whole number ≥ 1'),
-    observationHidden: num(v['obs-hidden'], 'obs-hidden', 0, whole(0), 'a whole number ≥ 0'),
-    embeddingSize: num(v.embedding, 'embedding', 16, whole(1), 'a whole number ≥ 1'),
-    encoderSize: num(v.encoder, 'encoder', 64, whole(1), 'a whole number ≥ 1'),
-    proposalHidden: num(v['proposal-hidden'], 'proposal-hidden', 32, whole(1), 'a whole number ≥ 1'),
-    order: num(v.order, 'order', 3, (n) => whole(1)(n) && n <= 6, 'a whole number from 1 to 6'),
-    discount: v.discount === undefined ? null : num(v.discount, 'discount', 0.75, (n) => n > 0 && n <= 1, 'a number in (0, 1]'),
+    stateSize: limited(v['state-size'], 'state-size', 'stateSize', D.stateSize),
+    generativeFlow: flowList(v['gen-flow'] ?? D.generativeFlow.join(','), 'generative flow (--gen-flow)'),
+    inferenceFlow: flowList(v['inf-flow'] ?? D.inferenceFlow.join(','), 'inference flow (--inf-flow)'),
+    flowHidden: limited(v['flow-hidden'], 'flow-hidden', 'flowHidden', D.flowHidden),
+    observationHidden: limited(v['obs-hidden'], 'obs-hidden', 'observationHidden', D.observationHidden),
+    embeddingSize: limited(v.embedding, 'embedding', 'embeddingSize', D.embeddingSize),
+    encoderSize: limited(v.encoder, 'encoder', 'encoderSize', D.encoderSize),
+    proposalHidden: limited(v['proposal-hidden'], 'proposal-hidden', 'proposalHidden', D.proposalHidden),
+    order: limited(v.order, 'order', 'ngramOrder', D.ngramOrder),
+    discount: v.discount === undefined ? null : num(v.discount, 'discount', 0.75, isKnDiscount, `a number in ${KN_DISCOUNT_RANGE.text}`),
     seed: num(v.seed, 'seed', 1, Number.isInteger, 'a whole number'),
     splitSeed: num(v['split-seed'], 'split-seed', 1, Number.isInteger, 'a whole number'),
     shares: { train, validation, test },
@@ -153,6 +167,7 @@ export function parseTrainArgs(argv: string[]): TrainOptions | null {
     resume: v.resume ?? null,
     keepCase: v['keep-case'] ?? false,
     allowedChars: v['allowed-chars'] ?? null,
+    validationFile: v['validation-file'] ?? null,
     quiet: v.quiet ?? false,
   };
 }

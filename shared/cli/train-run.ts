@@ -1,6 +1,8 @@
 /** `npm run train` as a function: load the corpus, build or resume the model, train, save checkpoint + metrics. */
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
-import { join } from 'node:path';
+import { basename, join } from 'node:path';
+import { trainingWordsRecord } from '../data/training-words';
+import { TRAINING_VALIDATION_WORDS } from '../eval/held-out-subset';
 import { decodeCheckpoint, encodeCheckpoint } from '../model/checkpoint';
 import { toTrainerError } from '../model/trainer-errors';
 import { initNodeBackend } from '../node/tf-node';
@@ -8,11 +10,18 @@ import { createEngine, type RunEngine } from '../training/run-engines';
 import { runTrainingLoop } from '../training/training-loop';
 import type { TrainerSettings } from '../training/training-types';
 import { loadCorpus } from './corpus-file';
+import { loadHeldOutFile } from './word-file';
 import { ProgressBar, type ProgressSink } from './progress-bar';
 import type { TrainOptions } from './train-options';
 
-export interface CurvePoint { step: number; boundBitsPerChar: number; isBound: boolean }
-export interface ValidationPoint { step: number; bitsPerWord: number; bitsPerChar: number; k: number }
+/**
+ * One training step's figure on its batch, as a positive cost in bits/char (end-of-word counted): `figure` says
+ * whether it is the IWAE bound (SSM), the exact teacher-forced cross entropy (GRU), or a warm-up figure that is
+ * not a bound.
+ */
+export interface CurvePoint { step: number; bitsPerChar: number; figure: 'bound' | 'exact' | 'warm-up' }
+/** Held-out figure (positive costs, bits/char with end-of-word counted): `exact` for GRU and n-gram, an IWAE estimate with K = k for the SSM. */
+export interface ValidationPoint { step: number; bitsPerWord: number; bitsPerChar: number; k: number; exact: boolean; words: number }
 
 export interface TrainMetrics {
   model: TrainOptions['model'];
@@ -49,7 +58,11 @@ export async function runTraining(o: TrainOptions, progress: ProgressSink = proc
   });
   const { alphabet, parts } = data;
   if (parts.train.length === 0) throw new Error('The training split is empty; raise the train share (--split) or use a larger corpus.');
-  const heldOut = parts.validation.length > 0 ? parts.validation : parts.test;
+  const heldOut = o.validationFile ? loadHeldOutFile(o.validationFile, alphabet, { keepCase: o.keepCase, option: '--validation-file' })
+    : parts.validation.length > 0 ? parts.validation : parts.test;
+  if (heldOut.length === 0) throw new Error('There are no validation words: give --validation-file or a validation/test share in --split.');
+  const trainingWords = trainingWordsRecord(parts.train, { corpus: basename(o.corpus), splitSeed: o.splitSeed, shares: o.shares,
+    keepCase: o.keepCase, allowedChars: o.allowedChars, validationFile: o.validationFile ? basename(o.validationFile) : null });
   mkdirSync(o.outDir, { recursive: true });
   const checkpointPath = join(o.outDir, 'checkpoint.nwck');
   const metricsPath = join(o.outDir, 'metrics.json');
@@ -66,12 +79,14 @@ export async function runTraining(o: TrainOptions, progress: ProgressSink = proc
   }
   const startStep = resumeCk?.step ?? 0;
   const settings = trainerSettingsOfOptions(o, o.model === 'ngram' ? 0 : startStep + o.steps);
+  const exact = o.model !== 'ssm';
+  const validationWords = Math.min(heldOut.length, TRAINING_VALIDATION_WORDS);
   // The shared engine and loop (shared/training), as in the browser worker and the runners; the held-out bound
-  // here uses the command line's own budget (--eval-k, 200 words).
+  // here uses the command line's own budget (--eval-k, a hash-random subset of TRAINING_VALIDATION_WORDS words).
   let engine: RunEngine;
   try {
     engine = createEngine(settings, { alphabet: alphabet.chars, train: parts.train, validation: heldOut }, resumeCk,
-      { kind: 'bound', words: 200, k: o.evalK });
+      { kind: 'bound', words: TRAINING_VALIDATION_WORDS, k: o.evalK });
   } catch (e) {
     throw new Error(toTrainerError(e).message);
   }
@@ -81,20 +96,23 @@ export async function runTraining(o: TrainOptions, progress: ProgressSink = proc
     const outcome = await runTrainingLoop(engine, settings, {
       progressEveryMs: 0,
       checkpointEvery: o.checkpointEvery,
-      saveCheckpoint: async () => writeFileSync(checkpointPath, encodeCheckpoint(engine.checkpoint())),
+      saveCheckpoint: async () => writeFileSync(checkpointPath, encodeCheckpoint({ ...engine.checkpoint(), trainingWords })),
       onStep: (step, f) => {
         steps++;
         words += o.batchSize;
-        curve.push({ step, boundBitsPerChar: -f.bitsPerChar, isBound: f.isBound });
-        bar?.update(step - startStep, f.isBound ? `cross-entropy bound ${f.bitsPerChar.toFixed(3)} bits/char` : `warm-up figure ${f.bitsPerChar.toFixed(3)} bits/char (not a bound)`);
+        const figure = exact ? 'exact' : f.isBound ? 'bound' : 'warm-up';
+        curve.push({ step, bitsPerChar: f.bitsPerChar, figure });
+        bar?.update(step - startStep, `${figure === 'exact' ? 'cross entropy (exact)' : figure === 'bound' ? 'cross-entropy bound' : 'warm-up figure (not a bound)'} ` +
+          `${f.bitsPerChar.toFixed(3)} bits/char (end-of-word counted)`);
       },
       onProgress: (p) => {
         const e = p.evaluation;
-        if (e) validation.push({ step: e.step, bitsPerWord: e.validationBitsPerWord, bitsPerChar: e.validationBitsPerChar, k: o.model === 'ssm' ? o.evalK : 0 });
+        if (e) validation.push({ step: e.step, bitsPerWord: e.validationBitsPerWord, bitsPerChar: e.validationBitsPerChar, k: exact ? 0 : o.evalK, exact, words: validationWords });
       },
     });
     if (outcome.kind === 'failed') throw new Error(outcome.error.message);
   } finally {
+    bar?.stop();
     engine.dispose();
   }
   const seconds = (performance.now() - t0) / 1000;

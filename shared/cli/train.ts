@@ -11,8 +11,8 @@ try {
     const last = metrics.validation[metrics.validation.length - 1];
     process.stdout.write(`Trained ${metrics.model} (${metrics.parameterCount} parameters) for ${metrics.steps} steps in ` +
       `${metrics.seconds.toFixed(1)} s on ${metrics.backend}.\n` +
-      (last ? `Held-out: ${last.bitsPerChar.toFixed(3)} bits/char, ${last.bitsPerWord.toFixed(2)} bits/word` +
-        `${last.k > 0 ? ` (IWAE bound, K = ${last.k})` : ' (exact)'}.\n` : '') +
+      (last ? `Held-out (${last.words} words): ${last.bitsPerChar.toFixed(3)} bits/char (end-of-word counted), ` +
+        `${last.bitsPerWord.toFixed(2)} bits/word${last.exact ? ' (exact)' : ` (IWAE estimate, K = ${last.k})`}.\n` : '') +
       `Checkpoint: ${checkpointPath}\nMetrics: ${metricsPath}\n`);
   }
 } catch (e) {

@@ -19,3 +19,11 @@ describe('splitCsvLine (RFC 4180 section 2)', () => {
     expect(splitCsvLine('"ab"c,2', ',')).toMatchObject({ ok: false, code: 'stray-quote', column: 5 });
   });
 });
+
+describe('splitCsvLine tolerances', () => {
+  it('accepts spaces around a quoted field and keeps the delimiter inside quotes', () => {
+    expect(splitCsvLine(' "a b" ,2', ',')).toEqual({ ok: true, fields: ['a b', '2'] });
+    expect(splitCsvLine('x,"y,z"', ',')).toEqual({ ok: true, fields: ['x', 'y,z'] });
+    expect(splitCsvLine('x,"ab', ',')).toMatchObject({ ok: false, code: 'unclosed-quote', column: 3 });
+  });
+});

@@ -5,6 +5,7 @@
 import { encodeBatch, type Alphabet } from '../data/encode';
 import type { GruLanguageModel } from '../model/gru-lm';
 import type { KneserNeyModel } from '../model/ngram-kn';
+import { meanStandardError, ratioStandardError } from './standard-error';
 import { chunkRanges, natsToBits, stepsOf } from './units';
 
 export function gruLogProbs(model: GruLanguageModel, words: readonly string[], alphabet: Alphabet, wordChunk = 256): Float64Array {
@@ -27,12 +28,24 @@ export interface HeldOutFigures {
   /** Σ −log p(w) / Σ T (EOW counted), bits. */
   bitsPerChar: number;
   words: number;
+  /** Standard errors from the per-word spread (exact figures: no Monte-Carlo part; null below 2 words). */
+  standardError?: { bitsPerWord: number | null; bitsPerChar: number | null };
 }
 
 export function heldOutFigures(words: readonly string[], logProbs: ArrayLike<number>): HeldOutFigures {
   if (words.length === 0) throw new Error('There are no held-out words; check the split shares.');
   let nats = 0;
   let steps = 0;
-  words.forEach((w, i) => { nats -= logProbs[i] as number; steps += stepsOf(w); });
-  return { bitsPerWord: natsToBits(nats / words.length), bitsPerChar: natsToBits(nats / steps), words: words.length };
+  const bits = new Float64Array(words.length);
+  const lengths = new Float64Array(words.length);
+  words.forEach((w, i) => {
+    nats -= logProbs[i] as number;
+    bits[i] = natsToBits(-(logProbs[i] as number));
+    lengths[i] = stepsOf(w);
+    steps += lengths[i] as number;
+  });
+  return {
+    bitsPerWord: natsToBits(nats / words.length), bitsPerChar: natsToBits(nats / steps), words: words.length,
+    standardError: { bitsPerWord: meanStandardError(bits), bitsPerChar: ratioStandardError(bits, lengths) },
+  };
 }

@@ -118,7 +118,7 @@ describe('noise mutual information', () => {
 describe('observation entropy, tight estimate, samples', () => {
   it('gives observation entropies in [0, log V] for the SSM and the GRU baseline', () => {
     const ssm = noLeak(() => ssmObservationEntropy(model, words, alphabet, { seed: 1 }));
-    const gru = new GruLanguageModel({ vocabSize: alphabet.size, stateSize: 4, embedSize: 4, obsHidden: 0 }, 1);
+    const gru = new GruLanguageModel({ vocabSize: alphabet.size, stateSize: 4, embeddingSize: 4, observationHidden: 0 }, 1);
     const base = noLeak(() => gruPredictiveEntropy(gru, words, alphabet));
     gru.dispose();
     for (const e of [ssm, base]) {
@@ -164,12 +164,33 @@ describe('completion by particle filter', () => {
     expect(c.meanState).toHaveLength(4);
   });
 
-  it('resamples in proportion to the weights (systematic: each count within 1 of N·w)', () => {
-    const w = [0.5, 0.25, 0.125, 0.125];
-    const idx = resampleIndices(w, createRng(1), 'systematic');
-    const counts = [0, 0, 0, 0];
-    for (const i of idx) counts[i]! += 1;
-    counts.forEach((n, i) => expect(Math.abs(n - 4 * (w[i] as number))).toBeLessThanOrEqual(1));
+  // Systematic resampling puts floor(N·w_i) or ceil(N·w_i) copies of particle i, i.e. |n_i − N·w_i| < 1 (Douc,
+  // Cappé & Moulines 2005, "Comparison of resampling schemes for particle filtering" — from memory). With 200
+  // particles and weights w_i ∝ exp(−i/20) (N·w_0 ≈ 9.8), a resampler that ignores the weights gives n_i = 1 and fails.
+  it('resamples in proportion to the weights (systematic: each count strictly within 1 of N·w)', () => {
+    const n = 200;
+    const raw = Array.from({ length: n }, (_, i) => Math.exp(-i / 20));
+    const total = raw.reduce((a, b) => a + b, 0);
+    const w = raw.map((x) => x / total);
+    for (const seed of [1, 2, 3]) {
+      const idx = resampleIndices(w, createRng(seed), 'systematic');
+      expect(idx).toHaveLength(n);
+      const counts = new Array<number>(n).fill(0);
+      for (const i of idx) counts[i]! += 1;
+      counts.forEach((c, i) => expect(Math.abs(c - n * (w[i] as number))).toBeLessThan(1));
+    }
+  });
+
+  // Multinomial resampling: counts are Multinomial(N, w); pooled over 50 draws of N = 200 the share of particle 0
+  // is w_0 ± 3·√(w_0(1−w_0)/10000) (binomial standard error; common practice, no source).
+  it('resamples multinomially with the right expected shares', () => {
+    const n = 200;
+    const raw = Array.from({ length: n }, (_, i) => Math.exp(-i / 20));
+    const total = raw.reduce((a, b) => a + b, 0);
+    const w0 = (raw[0] as number) / total;
+    let hits = 0;
+    for (let r = 0; r < 50; r++) for (const i of resampleIndices(raw.map((x) => x / total), createRng(100 + r), 'multinomial')) if (i === 0) hits++;
+    expect(Math.abs(hits / 10_000 - w0)).toBeLessThan(3 * Math.sqrt((w0 * (1 - w0)) / 10_000));
   });
 });
 

@@ -14,6 +14,7 @@ import { noiseMap, type NoiseMap } from './noise-map';
 import { gruPredictiveEntropy, ssmObservationEntropy, type ObservationEntropy } from './observation-entropy';
 import { sampleReport, sampleWords, type SampleReport } from './samples';
 import { crossEntropyFrom, ssmSequenceCrossEntropy, type CrossEntropyFigures, type SsmCrossEntropy } from './sequence-cross-entropy';
+import { heldOutSubset } from './held-out-subset';
 import { tightEstimate, type TightEstimate } from './tight-estimate';
 
 export interface EvaluationData {
@@ -39,7 +40,8 @@ export interface EvaluationSettings {
   tMax: number;
   particles: number;
   prefixes: string[];
-  /** Most held-out words scored by the tight estimate (the rest are skipped for time). */
+  /** Most held-out words scored (0 = every one); with fewer than the held-out words, a hash-random subset
+   *  seeded by `seed` (shared/eval/held-out-subset.ts). */
   maxHeldOut: number;
   seed: number;
 }
@@ -80,9 +82,9 @@ const strip = <T extends { logProbs: Float64Array }>(x: T): Omit<T, 'logProbs'> 
   return rest;
 };
 
-/** The held-out words actually scored: the most frequent first, at most `max`. */
-export function heldOutSample(heldOut: readonly WordCount[], max: number): string[] {
-  return heldOut.slice().sort((a, b) => b.count - a.count || (a.word < b.word ? -1 : 1)).slice(0, max).map((w) => w.word);
+/** The held-out words actually scored: all of them, or a hash-random subset of `max` (see held-out-subset.ts). */
+export function heldOutSample(heldOut: readonly WordCount[], max: number, seed = 1): string[] {
+  return heldOutSubset(heldOut, max, seed);
 }
 
 /** Baseline figures on the held-out `words`; the GRU's predictive entropy on `detail` (the words of the SSM's entropy figures). */
@@ -112,12 +114,14 @@ export type EvaluationStageCallback = (done: number, total: number, next: string
 
 export function evaluateSsm(model: SsmView, data: EvaluationData, s: EvaluationSettings,
                             baselines: { ngram?: KneserNeyModel; gru?: GruLanguageModel } = {},
-                            onStage: EvaluationStageCallback = () => {}): SsmEvaluation {
+                            onStage: EvaluationStageCallback = () => {},
+                            onPerWord?: (perWord: TightEstimate['perWord']) => void): SsmEvaluation {
   const total = 7;
-  const words = heldOutSample(data.heldOut, s.maxHeldOut);
+  const words = heldOutSample(data.heldOut, s.maxHeldOut, s.seed);
   const detail = words.slice(0, s.detailWords);
   onStage(0, total, 'tight estimate');
-  const { perWord: _perWord, ...tight } = tightEstimate(model, words, data.alphabet, { k: s.tightK, repeats: s.repeats, seed: s.seed });
+  const { perWord, ...tight } = tightEstimate(model, words, data.alphabet, { k: s.tightK, repeats: s.repeats, seed: s.seed });
+  onPerWord?.(perWord);
   onStage(1, total, 'sequence cross entropy');
   const ce: SsmCrossEntropy = ssmSequenceCrossEntropy(model, data.corpus, data.alphabet,
     { samples: s.trajectories, iwaeK: s.crossEntropyK, seed: s.seed });
@@ -154,7 +158,7 @@ export function evaluateSsm(model: SsmView, data: EvaluationData, s: EvaluationS
 
 export function evaluateExact(family: 'gru' | 'ngram', model: GruLanguageModel | KneserNeyModel, data: EvaluationData,
                               s: EvaluationSettings, ngramBaseline?: KneserNeyModel): ExactEvaluation {
-  const words = heldOutSample(data.heldOut, s.maxHeldOut);
+  const words = heldOutSample(data.heldOut, s.maxHeldOut, s.seed);
   const corpusWords = data.corpus.map((w) => w.word);
   const lp = (ws: string[]) => (family === 'gru'
     ? gruLogProbs(model as GruLanguageModel, ws, data.alphabet) : ngramLogProbs(model as KneserNeyModel, ws));

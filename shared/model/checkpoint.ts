@@ -5,13 +5,15 @@
  * Framework-free: runs unchanged in the browser, the worker and Node.
  */
 import type { NamedWeights } from './params';
+import { renameLegacySettingKeys } from './settings-keys';
+import { MODEL_FAMILIES, type ModelFamilyName } from './settings-rules';
 
 export const CHECKPOINT_MAGIC = 'NWCK';
 export const CHECKPOINT_FORMAT_VERSION = 1;
 const PREFIX_BYTES = 12;
 
-export type ModelFamily = 'ssm' | 'gru' | 'ngram';
-const FAMILIES: readonly ModelFamily[] = ['ssm', 'gru', 'ngram'];
+export type ModelFamily = ModelFamilyName;
+const FAMILIES: readonly ModelFamily[] = MODEL_FAMILIES;
 
 export interface Checkpoint {
   formatVersion: number;
@@ -28,6 +30,8 @@ export interface Checkpoint {
   optimizer?: NamedWeights;
   /** ISO date-time. */
   createdAt: string;
+  /** How to rebuild the training words (shared/data/training-words.ts); absent in older checkpoints. */
+  trainingWords?: unknown;
 }
 
 export type CheckpointErrorCode = 'BAD_MAGIC' | 'UNSUPPORTED_VERSION' | 'TRUNCATED' | 'CORRUPT' | 'SHAPE_MISMATCH';
@@ -55,6 +59,7 @@ interface Header {
   step: number;
   seed: number | string;
   createdAt: string;
+  trainingWords?: unknown;
   tensors: ManifestEntry[];
   payloadFloats: number;
 }
@@ -89,6 +94,7 @@ export function encodeCheckpoint(ck: Omit<Checkpoint, 'formatVersion'> & { forma
     step: ck.step,
     seed: ck.seed,
     createdAt: ck.createdAt,
+    ...(ck.trainingWords !== undefined ? { trainingWords: ck.trainingWords } : {}),
     tensors,
     payloadFloats,
   };
@@ -170,13 +176,15 @@ export function decodeCheckpoint(bytes: Uint8Array): Checkpoint {
   return {
     formatVersion: version,
     family: header.family,
-    settings: header.settings,
+    // Older GRU checkpoints spelled two keys differently (settings-keys.ts).
+    settings: header.family === 'gru' ? renameLegacySettingKeys(header.settings) : header.settings,
     alphabet: header.alphabet,
     step: header.step,
     seed: header.seed,
     weights,
     ...(hasOptimizer ? { optimizer } : {}),
     createdAt: header.createdAt,
+    ...(header.trainingWords !== undefined ? { trainingWords: header.trainingWords } : {}),
   };
 }
 

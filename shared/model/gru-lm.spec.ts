@@ -12,7 +12,7 @@ const alphabet = buildAlphabet(words);
 
 /** Plain float64 GRU language model, written from the equations of Cho et al. (2014), eq. 5–8. */
 function referenceLogLik(word: number[], w: NamedWeights, s: GruSettings): number {
-  const d = s.stateSize; const e = s.embedSize; const v = s.vocabSize;
+  const d = s.stateSize; const e = s.embeddingSize; const v = s.vocabSize;
   const at = (name: string, i: number, j: number, cols: number) => (w[name] as NamedWeights[string]).values[i * cols + j] as number;
   const sig = (x: number) => 1 / (1 + Math.exp(-x));
   let h = Array.from((w['h0'] as NamedWeights[string]).values);
@@ -45,7 +45,7 @@ function referenceLogLik(word: number[], w: NamedWeights, s: GruSettings): numbe
 }
 
 describe('GruLanguageModel', () => {
-  const settings: GruSettings = { vocabSize: alphabet.size, stateSize: 3, embedSize: 2, obsHidden: 0 };
+  const settings: GruSettings = { vocabSize: alphabet.size, stateSize: 3, embeddingSize: 2, observationHidden: 0 };
 
   it('matches a float64 reimplementation of the Cho et al. (2014) GRU equations within 1e-5', () => {
     const model = new GruLanguageModel(settings, 7);
@@ -66,7 +66,7 @@ describe('GruLanguageModel', () => {
   });
 
   it('gives next-character distributions that sum to one (closed form of softmax)', () => {
-    const model = new GruLanguageModel({ ...settings, obsHidden: 5 }, 3);
+    const model = new GruLanguageModel({ ...settings, observationHidden: 5 }, 3);
     const lp = model.predictiveLogProbs(encodeBatch(words, alphabet));
     const sums = tf.tidy(() => tf.sum(tf.exp(lp), 1).dataSync());
     lp.dispose();
@@ -75,7 +75,7 @@ describe('GruLanguageModel', () => {
   });
 
   it('trains without leaking tensors and lowers the loss', () => {
-    const model = new GruLanguageModel({ ...settings, stateSize: 8, embedSize: 8 }, 1);
+    const model = new GruLanguageModel({ ...settings, stateSize: 8, embeddingSize: 8 }, 1);
     const trainer = new GruTrainer(model, { learningRate: 0.05, clipNorm: 5 });
     const batch = encodeBatch(words, alphabet);
     const first = trainer.step(batch);

@@ -7,7 +7,7 @@
  *     z_t = σ(x_t W_z + h_{t-1} U_z + b_z)
  *     h̃_t = tanh(x_t W_h + (r_t ⊙ h_{t-1}) U_h + b_h)
  *     h_t = z_t ⊙ h_{t-1} + (1 − z_t) ⊙ h̃_t
- *   p(w_t | w_<t) = softmax(h_t W_o + b_o)   (or through one tanh hidden layer when `obsHidden` > 0,
+ *   p(w_t | w_<t) = softmax(h_t W_o + b_o)   (or through one tanh hidden layer when `observationHidden` > 0,
  *   the same observation form as the state-space model)
  * The log-likelihood Σ_t log p(w_t | w_<t) (EOW included) is exact.
  * Fused layout: Wx = [W_z | W_r | W_h] (E × 3d), Uzr = [U_z | U_r] (d × 2d), Uh (d × d), bx (3d).
@@ -25,19 +25,19 @@ export interface GruSettings {
   /** State size d (the same as the state-space model it is compared with). */
   stateSize: number;
   /** Embedding size of the previous character. */
-  embedSize: number;
+  embeddingSize: number;
   /** Hidden width of the observation MLP; 0 = linear observation layer. */
-  obsHidden: number;
+  observationHidden: number;
 }
 
 export { NonFiniteLossError };
 
 export const defaultGruSettings = (vocabSize: number, stateSize = 8): GruSettings =>
-  ({ vocabSize, stateSize, embedSize: 16, obsHidden: 0 });
+  ({ vocabSize, stateSize, embeddingSize: 16, observationHidden: 0 });
 
 /** Parameter table of the GRU baseline (names are the checkpoint names). */
 export function gruSpecs(s: GruSettings): ParamSpecs {
-  const { vocabSize: v, stateSize: d, embedSize: e, obsHidden: o } = s;
+  const { vocabSize: v, stateSize: d, embeddingSize: e, observationHidden: o } = s;
   const specs: ParamSpecs = {
     emb: glorot(v, e), h0: zeros([d]), Wx: glorot(e, 3 * d), Uzr: glorot(d, 2 * d), Uh: glorot(d, d),
     bx: zeros([3 * d]), bo: zeros([v]),
@@ -52,11 +52,11 @@ export class GruLanguageModel {
   private readonly params: ParamSet;
 
   constructor(settings: GruSettings, seed: number | string | Rng = 1) {
-    for (const [name, n] of Object.entries({ vocabSize: settings.vocabSize, stateSize: settings.stateSize, embedSize: settings.embedSize })) {
+    for (const [name, n] of Object.entries({ vocabSize: settings.vocabSize, stateSize: settings.stateSize, embeddingSize: settings.embeddingSize })) {
       if (!Number.isInteger(n) || n < 1) throw new Error(`GRU setting ${name} must be a positive whole number (got ${n}).`);
     }
-    if (!Number.isInteger(settings.obsHidden) || settings.obsHidden < 0) {
-      throw new Error(`GRU setting obsHidden must be 0 or a positive whole number (got ${settings.obsHidden}).`);
+    if (!Number.isInteger(settings.observationHidden) || settings.observationHidden < 0) {
+      throw new Error(`GRU setting observationHidden must be 0 or a positive whole number (got ${settings.observationHidden}).`);
     }
     this.settings = { ...settings };
     const rng = typeof seed === 'object' ? seed : createRng(seed).fork('gru-init');
@@ -105,7 +105,7 @@ export class GruLanguageModel {
   observationLogProbs(h: tf.Tensor2D): tf.Tensor2D {
     return tf.tidy(() => {
       let x: tf.Tensor2D = h;
-      if (this.settings.obsHidden > 0) x = tf.tanh(tf.add(tf.matMul(x, this.w('Wm') as tf.Tensor2D), this.w('bm'))) as tf.Tensor2D;
+      if (this.settings.observationHidden > 0) x = tf.tanh(tf.add(tf.matMul(x, this.w('Wm') as tf.Tensor2D), this.w('bm'))) as tf.Tensor2D;
       return tf.logSoftmax(tf.add(tf.matMul(x, this.w('Wo') as tf.Tensor2D), this.w('bo'))) as tf.Tensor2D;
     });
   }

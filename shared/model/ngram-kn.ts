@@ -3,7 +3,8 @@
  *
  * Method: interpolated **modified** Kneser–Ney of Chen & Goodman (1998), with three discounts per order
  * (D1 for n-grams seen once, D2 twice, D3+ three or more times) estimated from count-of-counts:
- *   Y = n1 / (n1 + 2 n2),  D1 = 1 − 2Y n2/n1,  D2 = 2 − 3Y n3/n2,  D3+ = 3 − 4Y n4/n3.
+ *   Y = n1 / (n1 + 2 n2),  D1 = 1 − 2Y n2/n1,  D2 = 2 − 3Y n3/n2,  D3+ = 3 − 4Y n4/n3,
+ * with a fallback on small corpora (see `estimateDiscounts`).
  * Option `discount: number` switches to the original interpolated Kneser–Ney (Kneser & Ney 1995) with one
  * fixed discount D for every count and order.
  *
@@ -18,6 +19,7 @@
  * All probabilities are exact and sum to one over the V symbols in every context, seen or not.
  */
 import type { Alphabet } from '../data/encode';
+import { isKnDiscount, KN_DISCOUNT_RANGE, SETTING_LIMITS } from './settings-rules';
 
 export interface NgramWordCount { word: string; count: number }
 
@@ -80,11 +82,12 @@ export class KneserNeyModel {
 
   static estimate(words: NgramWordCount[], alphabet: Alphabet, options: NgramOptions): KneserNeyModel {
     const order = options.order;
-    if (!Number.isInteger(order) || order < 1 || order > 6) {
-      throw new Error(`The n-gram order must be a whole number from 1 to 6 (got ${order}).`);
+    const [minOrder, maxOrder] = SETTING_LIMITS.ngramOrder;
+    if (!Number.isInteger(order) || order < minOrder || order > maxOrder) {
+      throw new Error(`The n-gram order must be a whole number from ${minOrder} to ${maxOrder} (got ${order}).`);
     }
-    if (options.discount !== undefined && !(options.discount > 0 && options.discount <= 1)) {
-      throw new Error(`The fixed discount must be in (0, 1] (got ${options.discount}).`);
+    if (options.discount !== undefined && !isKnDiscount(options.discount)) {
+      throw new Error(`The fixed discount must be in ${KN_DISCOUNT_RANGE.text} (got ${options.discount}).`);
     }
     if (words.length === 0) throw new Error('The corpus is empty: give at least one word to fit the n-gram model.');
     const charIds = new Map(alphabet.chars.map((c, i) => [c, i + 1]));
@@ -118,8 +121,10 @@ export class KneserNeyModel {
       }
     }
     const fixed = options.discount ?? null;
-    const discounts = adjusted.map((m) => (fixed !== null ? [fixed, fixed, fixed] as [number, number, number]
-      : estimateDiscounts(m.values())));
+    const discounts: [number, number, number][] = [];
+    for (const m of adjusted) {
+      discounts.push(fixed !== null ? [fixed, fixed, fixed] : estimateDiscounts(m.values(), discounts.at(-1)));
+    }
     const raw = adjusted.map((m) => {
       const table = new Map<string, Map<number, number>>();
       for (const [key, c] of m) {
@@ -205,27 +210,32 @@ function discountFor(d: [number, number, number], c: number): number {
 }
 
 /**
- * Chen & Goodman (1998) estimates from the count-of-counts n1..n4 of one order's (adjusted) counts.
- * Counts that are not whole numbers are bucketed by rounding. When a count-of-count is zero (tiny corpora),
- * the formula is undefined; we then fall back to D = Y (or 0.5) for that bucket, and clamp every D into
- * [0.05, i] for bucket i — common practice (no source).
+ * Discounts of one order from the count-of-counts n1..n4 of its (adjusted) counts; counts that are not whole
+ * numbers are bucketed by rounding.
+ *
+ * Modified KN, Chen & Goodman (1998), "An empirical study of smoothing techniques for language modeling",
+ * Harvard TR-10-98, §4.1.6 (from memory, section number not checked):
+ *   Y = n1/(n1 + 2 n2),  D1 = 1 − 2Y n2/n1,  D2 = 2 − 3Y n3/n2,  D3+ = 3 − 4Y n4/n3.
+ * Each D_i is kept when its counts-of-counts exist and it lies in its valid range 0 < D_i < i. Otherwise (small
+ * or weighted corpora: with no 4-counts D3+ = 3, which wipes out every n-gram seen three times) that D_i falls
+ * back to the next lower order's D_i (`lower`), as the widely used language-model toolkits do when the closed
+ * form fails (from memory); at order 1 to the single absolute discount D = n1/(n1 + 2 n2) of Ney, Essen & Kneser
+ * (1994), the estimate Chen & Goodman (1998) use for original KN (from memory), which lies in (0, 1); and with
+ * neither n1 nor n2, to 0.5 — common practice (no source).
  */
-export function estimateDiscounts(counts: Iterable<number>): [number, number, number] {
+export function estimateDiscounts(counts: Iterable<number>, lower?: [number, number, number]): [number, number, number] {
   const n = [0, 0, 0, 0, 0];
   for (const c of counts) {
     const r = Math.round(c);
     if (r >= 1 && r <= 4) n[r]++;
   }
-  const y = n[1] > 0 ? n[1] / (n[1] + 2 * n[2]) : 0.5;
+  const y = n[1] > 0 && n[2] > 0 ? n[1] / (n[1] + 2 * n[2]) : NaN;
   const est = [
     n[1] > 0 ? 1 - 2 * y * (n[2] / n[1]) : NaN,
     n[2] > 0 ? 2 - 3 * y * (n[3] / n[2]) : NaN,
-    n[3] > 0 ? 3 - 4 * y * (n[4] / n[3]) : NaN,
+    n[3] > 0 && n[4] > 0 ? 3 - 4 * y * (n[4] / n[3]) : NaN,
   ];
-  return est.map((d, i) => {
-    const v = Number.isFinite(d) && d > 0 ? d : y > 0 ? y : 0.5;
-    return Math.min(Math.max(v, 0.05), i + 1);
-  }) as [number, number, number];
+  return est.map((d, i) => (d > 0 && d < i + 1 ? d : lower ? lower[i] : y > 0 ? y : 0.5)) as [number, number, number];
 }
 
 function paddedIds(word: string, charIds: Map<string, number>, order: number): number[] {

@@ -6,6 +6,7 @@
 import { SOFTPLUS_INVERSE_OF_ONE } from './flows/conditioner';
 import { flowParamSpecs, validateFlowSpec, type FlowSpec } from './flows/flow';
 import { countParams, glorot, prefixSpecs, zeros, type ParamSpecs } from './params';
+import { SETTING_LIMITS } from './settings-rules';
 
 export interface SsmSettings {
   /** State (and noise) size d. */
@@ -45,14 +46,14 @@ export function defaultSsmSettings(vocabSize: number, overrides: Partial<SsmSett
   };
 }
 
-const LIMITS: Record<keyof Omit<SsmSettings, 'generativeFlow' | 'inferenceFlow'>, [number, number]> = {
-  stateSize: [1, 256],
-  vocabSize: [2, 4096],
-  flowHidden: [1, 1024],
-  observationHidden: [0, 1024],
-  embeddingSize: [1, 512],
-  encoderSize: [1, 1024],
-  proposalHidden: [1, 1024],
+const LIMITS: Record<keyof Omit<SsmSettings, 'generativeFlow' | 'inferenceFlow'>, readonly [number, number]> = {
+  stateSize: SETTING_LIMITS.stateSize,
+  vocabSize: SETTING_LIMITS.vocabSize,
+  flowHidden: SETTING_LIMITS.flowHidden,
+  observationHidden: SETTING_LIMITS.observationHidden,
+  embeddingSize: SETTING_LIMITS.embeddingSize,
+  encoderSize: SETTING_LIMITS.encoderSize,
+  proposalHidden: SETTING_LIMITS.proposalHidden,
 };
 
 /** Throws an error that names the bad setting and its allowed range. */

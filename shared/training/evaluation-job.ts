@@ -84,7 +84,7 @@ export function checkEvaluationSettings(s: EvaluationSettings): void {
   whole(s.samples, 'Samples', 1, 100_000);
   whole(s.tMax, 'Longest sample', 2, 200);
   whole(s.particles, 'Particles', 1, 100_000);
-  whole(s.maxHeldOut, 'Held-out words', 1, 100_000);
+  whole(s.maxHeldOut, 'Held-out words (0 = every one)', 0, 100_000); // 0 = every held-out word, as in npm run evaluate
   whole(s.seed, 'Seed', 0, 2 ** 31 - 1);
 }
 

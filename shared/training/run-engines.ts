@@ -10,6 +10,7 @@ import { alphabetFromChars, encodeBatch, type Alphabet } from '../data/encode';
 import { createRng, type Rng } from '../data/random';
 import { gruLogProbs, heldOutFigures, ngramLogProbs } from '../eval/baseline-figures';
 import { heldOutSample } from '../eval/evaluation-report';
+import { LIVE_VALIDATION_WORDS } from '../eval/held-out-subset';
 import { noiseInformation } from '../eval/noise-information';
 import { gruPredictiveEntropy, ssmObservationEntropy } from '../eval/observation-entropy';
 import { drawCategorical, sampleWords } from '../eval/samples';
@@ -24,7 +25,7 @@ import { TrainerError, TrainerErrorCode } from '../model/trainer-errors';
 import type { EvaluationFigures, TrainerSettings, TrainingSet } from './training-types';
 
 /** Validation budgets during training (the tight estimate of the evaluation page uses far larger ones). */
-export const LIVE_EVAL = { words: 64, k: 16, miWords: 12, miDraws: 64, entropyWords: 32, samples: 6 } as const;
+export const LIVE_EVAL = { words: LIVE_VALIDATION_WORDS, k: 16, miWords: 12, miDraws: 64, entropyWords: 32, samples: 6 } as const;
 
 /**
  * How the validation figures are measured. `live` (the app and the runners): LIVE_EVAL budgets, every figure,
@@ -140,7 +141,7 @@ function ssmEngine(c: EngineContext, ck: Checkpoint | null): RunEngine {
 function gruEngine(c: EngineContext, ck: Checkpoint | null): RunEngine {
   const { s, alphabet } = c;
   const settings: GruSettings = ck ? (ck.settings as GruSettings)
-    : { vocabSize: alphabet.size, stateSize: s.stateSize, embedSize: s.embeddingSize, obsHidden: s.observationHidden };
+    : { vocabSize: alphabet.size, stateSize: s.stateSize, embeddingSize: s.embeddingSize, observationHidden: s.observationHidden };
   const model = new GruLanguageModel(settings, s.seed);
   let trainer: GruTrainer;
   try {

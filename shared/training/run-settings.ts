@@ -26,7 +26,7 @@ export function trainerSettingsOf(run: Pick<RunDto, 'family' | 'settings'>): Tra
   }
   if (run.family === 'gru') {
     const m = (run.settings as GruRunSettings).model;
-    return { ...base, stateSize: m.stateSize, embeddingSize: m.embedSize, observationHidden: m.obsHidden };
+    return { ...base, stateSize: m.stateSize, embeddingSize: m.embeddingSize, observationHidden: m.observationHidden };
   }
   const m = (run.settings as NgramRunSettings).model;
   return { ...base, order: m.order, discount: m.discount ?? null, steps: 0 };

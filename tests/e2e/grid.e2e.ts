@@ -5,6 +5,7 @@
  * are compared side by side (the differing settings are marked), saved as a report, and the report's CSV is read back.
  * Last, a learnability check with a tiny budget is started from the corpus page and fills its verdict table.
  */
+import { parse } from 'csv-parse/sync';
 import assert from 'node:assert/strict';
 import { after, before, test } from 'node:test';
 import type { Page } from 'playwright-core';
@@ -30,23 +31,9 @@ after(async () => {
 
 const api = <T>(path: string, token: string, init: RequestInit = {}): Promise<T> => callApi<T>(server.url, path, token, init);
 
-/** A small RFC 4180 reader (section 2: quoted fields, doubled quotes, CRLF records), written apart from the exporter. */
+/** The export read back with the `csv-parse` package (RFC 4180: quoted fields, doubled quotes, CRLF records). */
 function parseCsv(text: string): string[][] {
-  const records: string[][] = [];
-  let field = '';
-  let record: string[] = [];
-  let quoted = false;
-  for (let i = 0; i < text.length; i++) {
-    const ch = text[i]!;
-    if (quoted) {
-      if (ch === '"' && text[i + 1] === '"') { field += '"'; i++; } else if (ch === '"') quoted = false; else field += ch;
-    } else if (ch === '"') quoted = true;
-    else if (ch === ',') { record.push(field); field = ''; } else if (ch === '\r' && text[i + 1] === '\n') {
-      record.push(field); records.push(record); record = []; field = ''; i++;
-    } else field += ch;
-  }
-  if (field !== '' || record.length > 0) { record.push(field); records.push(record); }
-  return records;
+  return parse(text, { relax_column_count: false, record_delimiter: '\r\n' }) as string[][];
 }
 
 const finishedOf = async (page: Page) => Number(/(\d+) \//.exec((await page.getByTestId('grid-progress').textContent()) ?? '')?.[1] ?? '0');

@@ -140,6 +140,8 @@ async function trainingStory(person: Awaited<ReturnType<TestBrowser['newPerson']
   const longTasks = await page.evaluate(() => (window as unknown as { __longTasks: number[] }).__longTasks);
   const slowFrames = await page.evaluate(() => (window as unknown as { __frames: string[] }).__frames.slice(0, 12));
   // No model work on the main thread: TF.js was never given a backend there and holds no tensors.
+  const mainScripts = await page.evaluate(() => [...new Set(performance.getEntriesByType('resource').map((e) => e.name)
+    .filter((name) => /\.m?js(\?|$)/.test(name)))]);
   const mainThreadTf = await page.evaluate(() => {
     const engine = (window as unknown as { _tfengine?: { backendName: string | null; state: { numTensors: number } } })._tfengine;
     return engine ? { backend: engine.backendName ?? null, tensors: engine.state.numTensors } : null;
@@ -186,8 +188,20 @@ async function trainingStory(person: Awaited<ReturnType<TestBrowser['newPerson']
   await screenshot(page, 'training-06-run-list');
   assert.ok(runUrl.includes(bench.id));
   assert.deepEqual(person.problems.filter((p) => !/favicon/.test(p)), [], 'no errors in the page');
+  // No model code runs on the main thread, checked so that the check can fail: the probe (TF.js's engine global)
+  // is shown to find TF.js where it is — the trainer worker's bundle holds it —; the global is present on the
+  // page exactly when a script the page loaded holds TF.js (a lazy page may import model code for a parameter
+  // count); and where it is present it has no backend and no tensors.
+  const marker = '_tfengine';
+  const pageScripts = await Promise.all(mainScripts.map(async (url) => ({ url, text: await (await fetch(url)).text() })));
+  assert.ok(pageScripts.length > 0, 'the page loaded scripts');
+  const pageHoldsTf = pageScripts.some((s) => s.text.includes(marker));
+  assert.equal(mainThreadTf !== null, pageHoldsTf, `TF.js's global is on the page exactly when a page script holds TF.js (${JSON.stringify(mainThreadTf)})`);
   assert.ok(mainThreadTf === null || (mainThreadTf.backend === null && mainThreadTf.tensors === 0),
     `the page's main thread runs no model code (its TF.js: ${JSON.stringify(mainThreadTf)})`);
+  const workerUrls = [...new Set(pageScripts.flatMap((s) => [...s.text.matchAll(/worker-[A-Za-z0-9_-]+\.js/g)].map((m) => new URL(m[0], s.url).href)))];
+  const workerTexts = await Promise.all(workerUrls.map(async (url) => (await fetch(url)).text()));
+  assert.ok(workerTexts.some((t) => t.includes(marker)), `the trainer worker's bundle holds TF.js (checked ${workerUrls.length} worker script(s))`);
   // The main thread's long tasks are recorded, not asserted: a time limit is a speed target, measured over repeated
   // runs by `npm run bench:page` (bench/page-responsiveness.ts) and reported in the README.
   const out = process.env['TRAINING_LONG_TASKS_FILE'] ?? 'tests/artifacts/training-long-tasks.json';

@@ -212,6 +212,7 @@ describe('DELETE /api/auth/account', () => {
     const res = await deleteAccount(person.token, { password: TEST_PASSWORD, confirmEmail: 'lone.person@example.org' });
     expect(spy).toHaveBeenCalledTimes(1);
     expect(res.status).toBe(500);
+    expect(t.takeServerErrors().map((e) => (e as Error).message)).toEqual(['disk went away']);
     expect(await everyRowCount()).toEqual(before);
     expect(await one('select name from benches where id = ?', [soloId])).toEqual({ name: 'Lone lab' });
     expect((await api().get('/api/auth/me').set(bearer(person.token))).status).toBe(200);

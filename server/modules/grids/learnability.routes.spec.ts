@@ -97,7 +97,7 @@ describe('the learnability check', () => {
   it('has no verdict for a plain grid', async () => {
     const plain = await api().post(`/api/benches/${f.benchId}/grids`).set(bearer(f.tokens.member)).send({
       name: 'Sizes', corpusId, family: 'gru',
-      baseSettings: { model: { embedSize: 4, obsHidden: 0 }, training: { steps: 10, batchSize: 4, learningRate: 0.01 } },
+      baseSettings: { model: { embeddingSize: 4, observationHidden: 0 }, training: { steps: 10, batchSize: 4, learningRate: 0.01 } },
       axes: [{ key: 'model.stateSize', values: [8, 16] }],
     });
     expect(plain.status).toBe(201);

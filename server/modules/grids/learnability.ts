@@ -31,7 +31,7 @@ export function learnabilityCells(budgetSteps: number, seed: number, split: NonN
     model: `ngram-${order}`, family: 'ngram' as const, size: order, settings: { model: { order, discount: null }, split },
   }));
   for (const stateSize of LEARNABILITY_STATE_SIZES) {
-    cells.push({ model: `gru-${stateSize}`, family: 'gru', size: stateSize, settings: { model: { stateSize, embedSize: 16, obsHidden: 0 }, training, split } });
+    cells.push({ model: `gru-${stateSize}`, family: 'gru', size: stateSize, settings: { model: { stateSize, embeddingSize: 16, observationHidden: 0 }, training, split } });
   }
   for (const stateSize of LEARNABILITY_STATE_SIZES) {
     cells.push({

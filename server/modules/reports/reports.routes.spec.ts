@@ -114,7 +114,7 @@ describe('reports', () => {
 
     const grid = (await api().post(`/api/benches/${f.benchId}/grids`).set(bearer(f.tokens.member)).send({
       name: 'Sizes', corpusId, family: 'gru',
-      baseSettings: { model: { embedSize: 4, obsHidden: 0 }, training: { steps: 10, batchSize: 4, learningRate: 0.01 } },
+      baseSettings: { model: { embeddingSize: 4, observationHidden: 0 }, training: { steps: 10, batchSize: 4, learningRate: 0.01 } },
       axes: [{ key: 'model.stateSize', values: [8, 16] }],
     })).body as GridDto;
     const g = await api().post(reportsUrl()).set(bearer(f.tokens.member)).send({ kind: 'grid', title: 'Sizes grid', sourceIds: [grid.id] });

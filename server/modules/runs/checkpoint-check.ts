@@ -66,7 +66,7 @@ function modelOf(ck: Checkpoint): CheckpointModel {
   }
   if (ck.family === 'gru') {
     const s = ck.settings as GruSettings;
-    const parsed = gruModelSchema.safeParse({ stateSize: s?.stateSize, embedSize: s?.embedSize, obsHidden: s?.obsHidden });
+    const parsed = gruModelSchema.safeParse({ stateSize: s?.stateSize, embeddingSize: s?.embeddingSize, observationHidden: s?.observationHidden });
     if (!parsed.success) throw unusable(`The checkpoint's GRU settings are invalid: ${parsed.error.issues[0]?.message ?? 'unknown problem'}`);
     if (s.vocabSize !== ck.alphabet.length + 1) {
       throw unusable(`The checkpoint's alphabet has ${ck.alphabet.length} characters but its model expects ${s.vocabSize - 1}; export it again.`);

@@ -51,7 +51,7 @@ describe('importing a checkpoint file as a new run', () => {
     const gru = await api().post(importUrl()).set(bearer(f.tokens.member)).attach('file', Buffer.from(gruCheckpointBytes(['x', 'y'], 40)), 'gru.nwck').field('name', 'Old GRU');
     expect(gru.status).toBe(201);
     expect(gru.body).toMatchObject({ name: 'Old GRU', family: 'gru', corpus: null, alphabet: ['x', 'y'], stepsDone: 40 });
-    expect(gru.body.settings.model).toEqual({ stateSize: 2, embedSize: 2, obsHidden: 0 });
+    expect(gru.body.settings.model).toEqual({ stateSize: 2, embeddingSize: 2, observationHidden: 0 });
 
     const alphabet = alphabetFromChars(['a', 'b']);
     const model = KneserNeyModel.estimate([{ word: 'ab', count: 3 }, { word: 'ba', count: 1 }], alphabet, { order: 2 });

@@ -79,7 +79,7 @@ export function ssmCheckpointBytes(alphabet: string[], opts: { model?: typeof ti
 }
 
 export function gruCheckpointBytes(alphabet: string[], step = 40): Uint8Array {
-  const settings = { vocabSize: alphabet.length + 1, stateSize: 2, embedSize: 2, obsHidden: 0 };
+  const settings = { vocabSize: alphabet.length + 1, stateSize: 2, embeddingSize: 2, observationHidden: 0 };
   return encodeCheckpoint({ family: 'gru', settings, alphabet, step, seed: 3, weights: handMadeWeights(gruSpecs(settings)), createdAt: '2026-03-01T09:00:00.000Z' });
 }
 

@@ -94,7 +94,7 @@ describe('creating runs', () => {
       family: 'gru',
       name: 'GRU at 8',
       corpusId: otherCorpus.id,
-      settings: { model: { stateSize: 8, embedSize: 4, obsHidden: 0 }, training: { ...tinyTraining } },
+      settings: { model: { stateSize: 8, embeddingSize: 4, observationHidden: 0 }, training: { ...tinyTraining } },
     });
     expect(gru.family).toBe('gru');
     expect(gru.alphabet).toEqual(['x', 'y']);

@@ -1,9 +1,10 @@
 /** The contract every single flow layer implements (a stack of layers is itself a `ConditionalFlow`). */
 import type * as tf from '@tensorflow/tfjs-core';
 import type { ParamSpecs } from '../params';
+import type { FlowKindName } from '../settings-rules';
 import type { VariableLookup } from './conditioner';
 
-export type FlowKind = 'shift' | 'diag' | 'tril' | 'coupling';
+export type FlowKind = FlowKindName;
 
 /** Result of running a flow forward: `y = f(c, z)` and `log |det dy/dz|` per row. */
 export interface FlowForward {

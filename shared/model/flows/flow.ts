@@ -10,6 +10,7 @@ import { ParamSet, prefixSpecs, type NamedWeights, type ParamSpecs } from '../pa
 import { CouplingFlow } from './coupling-flow';
 import { DiagFlow } from './diag-flow';
 import type { FlowDims, FlowForward, FlowInverse, FlowKind, FlowLayer, PreparedLayer } from './flow-layer';
+import { FLOW_KIND_NAMES } from '../settings-rules';
 import { ShiftFlow } from './shift-flow';
 import { TrilFlow } from './tril-flow';
 
@@ -20,7 +21,7 @@ export interface FlowSpec {
   kind: FlowKind;
 }
 
-export const FLOW_KINDS: readonly FlowKind[] = ['shift', 'diag', 'tril', 'coupling'];
+export const FLOW_KINDS: readonly FlowKind[] = FLOW_KIND_NAMES;
 
 export interface ConditionalFlow {
   readonly spec: readonly FlowSpec[];

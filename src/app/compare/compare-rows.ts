@@ -45,7 +45,7 @@ export function settingsOf(run: RunDto): Record<string, { label: string; value: 
   } else if (run.family === 'gru') {
     const m = (run.settings as GruRunSettings).model;
     out['stateSize'] = { label: 'State size', value: m.stateSize };
-    out['embeddingSize'] = { label: 'Embedding size', value: m.embedSize };
+    out['embeddingSize'] = { label: 'Embedding size', value: m.embeddingSize };
   } else {
     out['order'] = { label: 'n-gram order', value: (run.settings as NgramRunSettings).model.order };
   }

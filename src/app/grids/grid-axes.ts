@@ -45,7 +45,7 @@ export function baseSettingsOf(family: RunFamily, budget: GridBudget): Record<st
     evalEvery: budget.evalEvery, checkpointEvery: budget.checkpointEvery,
   };
   if (family === 'ngram') return { model: { order: 3, discount: null }, training };
-  if (family === 'gru') return { model: { stateSize: p.model.stateSize, embedSize: p.model.embeddingSize, obsHidden: 0 }, training };
+  if (family === 'gru') return { model: { stateSize: p.model.stateSize, embeddingSize: p.model.embeddingSize, observationHidden: 0 }, training };
   return {
     model: {
       stateSize: p.model.stateSize, generativeFlow: p.model.generativeFlow.map((kind) => ({ kind })),

@@ -5,9 +5,12 @@
 import { FormControl, FormGroup, Validators, type AbstractControl, type ValidationErrors, type ValidatorFn } from '@angular/forms';
 import type { CreateRunRequest, RunFamily } from '../../../shared/api/runs';
 import type { FlowKind } from '../../../shared/model/flows/flow';
+import { NEW_RUN_MODEL_DEFAULTS as D, SETTING_LIMITS, type LimitedSetting } from '../../../shared/model/settings-rules';
 import type { TrainerSettings } from '../workers/trainer-api';
 
 const whole = (min: number, max: number) => [Validators.required, Validators.min(min), Validators.max(max), Validators.pattern(/^-?\d+$/)];
+/** Limits of model settings from shared/model/settings-rules.ts (the same ones the server checks). */
+const limit = (key: LimitedSetting) => whole(SETTING_LIMITS[key][0], SETTING_LIMITS[key][1]);
 const nonEmptyStack: ValidatorFn = (c: AbstractControl): ValidationErrors | null =>
   Array.isArray(c.value) && c.value.length > 0 ? (c.value.length > 8 ? { tooManyLayers: true } : null) : { noLayers: true };
 
@@ -31,16 +34,16 @@ export function createRunForm() {
     }, { validators: sharesAddUp }),
     model: new FormGroup({
       family: new FormControl<RunFamily>('ssm', { nonNullable: true }),
-      stateSize: new FormControl(8, { nonNullable: true, validators: whole(1, 256) }),
-      generativeFlow: new FormControl<FlowKind[]>(['coupling', 'coupling', 'diag'], { nonNullable: true, validators: nonEmptyStack }),
-      inferenceFlow: new FormControl<FlowKind[]>(['diag'], { nonNullable: true, validators: nonEmptyStack }),
-      flowHidden: new FormControl(32, { nonNullable: true, validators: whole(1, 1024) }),
-      encoderSize: new FormControl(64, { nonNullable: true, validators: whole(1, 1024) }),
-      embeddingSize: new FormControl(16, { nonNullable: true, validators: whole(1, 512) }),
-      proposalHidden: new FormControl(32, { nonNullable: true, validators: whole(1, 1024) }),
-      observationHidden: new FormControl(0, { nonNullable: true, validators: whole(0, 1024) }),
-      samples: new FormControl(8, { nonNullable: true, validators: whole(1, 1024) }),
-      order: new FormControl(3, { nonNullable: true, validators: whole(1, 6) }),
+      stateSize: new FormControl<number>(D.stateSize, { nonNullable: true, validators: limit('stateSize') }),
+      generativeFlow: new FormControl<FlowKind[]>([...D.generativeFlow], { nonNullable: true, validators: nonEmptyStack }),
+      inferenceFlow: new FormControl<FlowKind[]>([...D.inferenceFlow], { nonNullable: true, validators: nonEmptyStack }),
+      flowHidden: new FormControl<number>(D.flowHidden, { nonNullable: true, validators: limit('flowHidden') }),
+      encoderSize: new FormControl<number>(D.encoderSize, { nonNullable: true, validators: limit('encoderSize') }),
+      embeddingSize: new FormControl<number>(D.embeddingSize, { nonNullable: true, validators: limit('embeddingSize') }),
+      proposalHidden: new FormControl<number>(D.proposalHidden, { nonNullable: true, validators: limit('proposalHidden') }),
+      observationHidden: new FormControl<number>(D.observationHidden, { nonNullable: true, validators: limit('observationHidden') }),
+      samples: new FormControl<number>(D.samples, { nonNullable: true, validators: limit('samples') }),
+      order: new FormControl<number>(D.ngramOrder, { nonNullable: true, validators: limit('ngramOrder') }),
     }),
     training: new FormGroup({
       batchSize: new FormControl(64, { nonNullable: true, validators: whole(1, 4096) }),
@@ -107,7 +110,7 @@ export function createRunRequest(v: RunFormValue): CreateRunRequest {
     return { ...base, family: 'ngram', settings: { model: { order: +m.order, discount: null }, training, ...split } };
   }
   if (m.family === 'gru') {
-    return { ...base, family: 'gru', settings: { model: { stateSize: +m.stateSize, embedSize: +m.embeddingSize, obsHidden: +m.observationHidden }, training, ...split } };
+    return { ...base, family: 'gru', settings: { model: { stateSize: +m.stateSize, embeddingSize: +m.embeddingSize, observationHidden: +m.observationHidden }, training, ...split } };
   }
   return {
     ...base, family: 'ssm',

@@ -13,7 +13,7 @@ export { trainerSettingsOf, trainingSetOf } from '../../../shared/training/run-s
 export function parameterCountOf(s: TrainerSettings, vocabSize: number): number | null {
   if (s.family === 'ngram') return null;
   if (s.family === 'gru') {
-    return countParams(gruSpecs({ vocabSize, stateSize: s.stateSize, embedSize: s.embeddingSize, obsHidden: s.observationHidden }));
+    return countParams(gruSpecs({ vocabSize, stateSize: s.stateSize, embeddingSize: s.embeddingSize, observationHidden: s.observationHidden }));
   }
   return ssmParameterCount({
     stateSize: s.stateSize, vocabSize, generativeFlow: s.generativeFlow.map((kind) => ({ kind })),

@@ -3,7 +3,7 @@ import { ChangeDetectionStrategy, Component, computed, input } from '@angular/co
 import type { EvaluationResults } from '../../../../shared/api/evaluations';
 import { figureRows } from './figure-rows';
 
-/** The headline numbers of an evaluation: mono, right-aligned, with units and the spread over repeats. */
+/** The headline numbers of an evaluation: mono, right-aligned, with units and standard errors (per-word spread and repeats). */
 @Component({
   selector: 'nw-evaluation-figures',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -120,9 +120,9 @@ const MORE = ['maxHeldOut', 'detailWords', 'crossEntropyK', 'tMax', 'particles',
       </div>
       @if (more()) {
         <mat-form-field>
-          <mat-label>Held-out words</mat-label>
+          <mat-label>Held-out words scored</mat-label>
           <input matInput type="number" formControlName="maxHeldOut" min="1" max="100000" />
-          <mat-hint>most frequent first, at most 1–100000</mat-hint>
+          <mat-hint>all when the split has fewer; else a hash-random subset, the same for every run (1–100000)</mat-hint>
           <mat-error>Give the held-out words as a whole number from 1 to 100000.</mat-error>
         </mat-form-field>
         <mat-form-field>

@@ -4,18 +4,11 @@ import uPlot from 'uplot';
 import type { CurvePoint } from '../live-run';
 import { SERIES } from '../live-run';
 import { alignSeries } from './align-series';
+import { curveLines } from './curve-lines';
 
 /** Live points are drawn at most this often; a redraw costs about a millisecond of main-thread time. */
 const RENDER_EVERY_MS = 1000;
 const HEIGHT = 300;
-
-/** Our palette (the product look): deep teal, amber for live activity, and two calm companions. */
-const LINES = [
-  { key: SERIES.train, name: 'Training bound', scale: 'bits', color: '#0f5e5a', points: false },
-  { key: SERIES.validation, name: 'Validation bound', scale: 'bits', color: '#c7861a', points: true },
-  { key: SERIES.entropy, name: 'Observation entropy', scale: 'info', color: '#6b5b95', points: true },
-  { key: SERIES.noise, name: 'Mean noise MI', scale: 'info', color: '#8a9a5b', points: true },
-] as const;
 
 const AXIS_FONT = '12px "IBM Plex Sans", system-ui, sans-serif';
 const fixed3 = (_: uPlot, v: number | null) => (v === null || !Number.isFinite(v) ? '—' : v.toFixed(3));
@@ -36,9 +29,11 @@ export class RunCurves {
   readonly history = input<Record<string, { steps: number[]; values: number[] }>>({});
   /** New points while the run trains in this tab. */
   readonly live = input<Observable<CurvePoint[]> | null>(null);
+  /** The model family: decides the series and their names (exact figures are never called bounds). */
+  readonly family = input<'ssm' | 'gru' | 'ngram'>('ssm');
   private readonly host = viewChild.required<ElementRef<HTMLDivElement>>('host');
   private plot: uPlot | null = null;
-  private readonly data = new Map<string, [number, number][]>(LINES.map((l) => [l.key, []]));
+  private readonly data = new Map<string, [number, number][]>(curveLines('ssm').map((l) => [l.key, []]));
   private subscription: Subscription | null = null;
   private renderTimer: ReturnType<typeof setTimeout> | null = null;
   private frame = 0;
@@ -75,7 +70,7 @@ export class RunCurves {
 
   /** Replaces everything with the stored history (after loading, or after resuming from a checkpoint). */
   reset(history: Record<string, { steps: number[]; values: number[] }>): void {
-    for (const l of LINES) {
+    for (const l of curveLines('ssm')) {
       const h = history[l.key];
       this.data.set(l.key, h ? h.steps.map((s, i) => [s, h.values[i] as number]) : []);
     }
@@ -121,7 +116,7 @@ export class RunCurves {
   }
 
   private aligned(): uPlot.AlignedData {
-    return alignSeries(LINES.map((l) => this.data.get(l.key) ?? [])) as uPlot.AlignedData;
+    return alignSeries(curveLines(this.family()).map((l) => this.data.get(l.key) ?? [])) as uPlot.AlignedData;
   }
 
   private render(): void {
@@ -146,12 +141,12 @@ export class RunCurves {
       legend: { live: true },
       axes: [
         { ...axis('step', 'x'), grid: { show: false } },
-        axis('bits/char', 'bits'),
+        axis('bits/char (end-of-word counted)', 'bits'),
         axis('bits', 'info', 1),
       ],
       series: [
         { label: 'step', value: (_u, v) => (v === null ? '—' : String(v)) },
-        ...LINES.map((l): uPlot.Series => ({
+        ...curveLines(this.family()).map((l): uPlot.Series => ({
           label: l.name, scale: l.scale, stroke: l.color, width: 2, spanGaps: true, value: fixed3,
           points: l.points ? { show: true, size: 5, fill: l.color } : { show: false },
         })),

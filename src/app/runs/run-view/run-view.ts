@@ -17,6 +17,7 @@ import { RunCheckpoints } from '../run-checkpoints/run-checkpoints';
 import { RunCurves } from '../run-curves/run-curves';
 import { FAMILY_LABELS, STATUS_LABELS, formatDuration } from '../run-labels';
 import { LIVE_STATE_LABELS } from '../live-run';
+import { LIVE_VALIDATION_WORDS } from '../../../../shared/eval/held-out-subset';
 import { RunScheduler } from '../run-scheduler';
 import { RunsApi } from '../runs-api';
 
@@ -51,6 +52,8 @@ export class RunView {
   /** What the last "Save checkpoint now" did (a plain line beside the button: no overlay to build mid-training). */
   protected readonly saveNote = signal<{ ok: boolean; text: string } | null>(null);
   protected readonly familyLabels = FAMILY_LABELS;
+  protected readonly validationNote = `Validation figures while training score a hash-random subset of at most ${LIVE_VALIDATION_WORDS} ` +
+    'held-out words (the same for every run of the corpus); bits/char count the end-of-word symbol. An evaluation scores more.';
   protected readonly statusLabels = STATUS_LABELS;
   protected readonly duration = formatDuration;
 

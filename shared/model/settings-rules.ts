@@ -1,0 +1,51 @@
+/**
+ * The one home of the model-settings rules: families, flow kinds, limits, the Kneser–Ney discount range and
+ * the defaults of a new run. The API schemas (shared/api/runs.ts), the checkpoint reader (checkpoint.ts), the
+ * model validation (ssm-settings.ts, ngram-kn.ts), the command line (shared/cli/train-options.ts) and the
+ * new-run form (src/app/runs/run-form.ts) all derive from here; settings-rules.spec.ts checks they agree.
+ * Plain constants only: no TF.js, no zod, so every page and the server can import it.
+ */
+
+export const MODEL_FAMILIES = ['ssm', 'gru', 'ngram'] as const;
+export type ModelFamilyName = (typeof MODEL_FAMILIES)[number];
+
+export const FLOW_KIND_NAMES = ['shift', 'diag', 'tril', 'coupling'] as const;
+export type FlowKindName = (typeof FLOW_KIND_NAMES)[number];
+
+/** Inclusive [min, max] of every whole-number model setting. */
+export const SETTING_LIMITS = {
+  stateSize: [1, 256],
+  vocabSize: [2, 4096],
+  flowHidden: [1, 1024],
+  observationHidden: [0, 1024],
+  embeddingSize: [1, 512],
+  encoderSize: [1, 1024],
+  proposalHidden: [1, 1024],
+  /** Importance samples K per word during training. */
+  samples: [1, 1024],
+  /** Layers of one flow stack. */
+  flowLayers: [1, 8],
+  ngramOrder: [1, 6],
+} as const satisfies Record<string, readonly [number, number]>;
+export type LimitedSetting = keyof typeof SETTING_LIMITS;
+
+/** A fixed Kneser–Ney discount (original interpolated KN): 0 < D ≤ 1. */
+export const KN_DISCOUNT_RANGE = { above: 0, atMost: 1, text: '(0, 1]' } as const;
+export const isKnDiscount = (d: number): boolean => Number.isFinite(d) && d > KN_DISCOUNT_RANGE.above && d <= KN_DISCOUNT_RANGE.atMost;
+
+export const withinLimit = (key: LimitedSetting, n: number): boolean =>
+  Number.isInteger(n) && n >= SETTING_LIMITS[key][0] && n <= SETTING_LIMITS[key][1];
+
+/** Model settings of a new run (form and command line). */
+export const NEW_RUN_MODEL_DEFAULTS = {
+  stateSize: 8,
+  generativeFlow: ['coupling', 'coupling', 'diag'] as FlowKindName[],
+  inferenceFlow: ['diag'] as FlowKindName[],
+  flowHidden: 32,
+  observationHidden: 0,
+  embeddingSize: 16,
+  encoderSize: 64,
+  proposalHidden: 32,
+  samples: 8,
+  ngramOrder: 3,
+} as const;
