@@ -36,7 +36,7 @@ describe('WASM step kernels (BatchMatMul, Tanh, Identity)', () => {
   afterAll(async () => { await initNodeBackend('wasm'); });
 
   it('are installed in place of the stock WASM kernels', () => {
-    for (const name of ['BatchMatMul', 'Tanh', 'Identity']) {
+    for (const name of ['BatchMatMul', 'Tanh', 'Identity', 'Concat']) {
       const kernel = tf.getKernel(name, 'wasm') as unknown as Record<symbol, unknown> | undefined;
       expect(kernel?.[Symbol.for('noisewright.stepKernel')]).toBe(true);
     }
@@ -98,6 +98,24 @@ describe('WASM step kernels (BatchMatMul, Tanh, Identity)', () => {
     const xs = [-3, -0.3, -0.01, 0, 0.02, 0.7, 4];
     const g = await on('wasm', () => tf.tidy(() => Array.from(tf.grad((x: tf.Tensor) => tf.sum(tf.tanh(x)))(tf.tensor1d(xs)).dataSync())));
     xs.forEach((x, i) => expect(g[i]).toBeCloseTo(1 - Math.tanh(x) ** 2, 6));
+  });
+
+  it('concat along every axis, with short and long rows, each dtype, agrees exactly with the CPU backend', async () => {
+    const rand = lcg(17);
+    for (const dtype of ['float32', 'int32', 'bool'] as const) {
+      for (const [shapes, axis] of [
+        [[[4, 3], [4, 40], [4, 1]], 1], [[[2, 3], [5, 3]], 0], [[[2, 3, 4], [2, 3, 2], [2, 3, 0]], 2], [[[2, 1, 4], [2, 6, 4]], 1], [[[7], [0], [3]], 0],
+      ] as Array<[number[][], number]>) {
+        const data = shapes.map((s) => Array.from({ length: s.reduce((a, b) => a * b, 1) }, () => dtype === 'bool' ? (rand() < 0.5 ? 1 : 0) : Math.floor(rand() * 200 - 100) / (dtype === 'float32' ? 7 : 1)));
+        const run = () => tf.tidy(() => {
+          const out = tf.concat(shapes.map((s, i) => tf.tensor(data[i]!, s, dtype)), axis);
+          return { shape: out.shape, values: Array.from(out.dataSync()) };
+        });
+        const wasm = await on('wasm', run);
+        const cpu = await on('cpu', run);
+        expect(wasm).toEqual(cpu);
+      }
+    }
   });
 
   it('a clone keeps its values after the original is disposed, and frees its memory when disposed', async () => {
