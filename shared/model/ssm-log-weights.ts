@@ -2,7 +2,8 @@
  * The per-sample log-weight log W of MODEL.md section 5, for K proposal samples per word, written for few
  * kernel launches (per-kernel overhead dominates at these sizes):
  * - every conditioner's product with h_{t-1} (proposal and each layer of both flows) is one matmul per step;
- * - all first-layer biases are added in one add per step (the proposal's word-level input b_t in one more);
+ * - all first-layer biases and the proposal's word-level input b_t (tiled over the K samples for all steps at
+ *   once) are added in one add per step;
  * - the observation term and the Gaussian terms of all steps are computed after the loop, on [T, K, B, ...]
  *   stacks, and masked by one multiply.
  */
@@ -35,8 +36,10 @@ export function computeLogWeights(
   // Rows are k*B + b (sample k of word b); word-level inputs are broadcast over the K samples once per call.
   const enc = m.encodeBackward(batch); // [T, B, H]
   const bProj = tf.reshape(tf.add(tf.matMul(tf.reshape(enc, [T * B, H]), p('prop.wb')), p('prop.b1')), [T, B, P]);
-  const bSteps = tf.unstack(bProj) as tf.Tensor2D[]; // [B, P] each, broadcast over the K samples below
-  const biases = tf.concat([tf.zeros([P]), inf.contextB, gen.contextB]); // prop.b1 is already in bProj
+  // Every first-layer term that does not depend on h_{t-1}, for all steps at once: the proposal's word-level
+  // input (with prop.b1) tiled over the K samples, then both flows' first-layer biases. [T, N, P + flow widths]
+  const flowBiases = tf.tile(tf.reshape(tf.concat([inf.contextB, gen.contextB]), [1, 1, -1]), [T, N, 1]);
+  const biasSteps = tf.unstack(tf.concat([tf.tile(bProj, [1, k, 1]), flowBiases], 2)) as tf.Tensor2D[];
   const wCtx = tf.concat([p('prop.wh'), inf.contextW, gen.contextW], 1); // [d, P + widths of both flows]
   const eps = tf.randomNormal([T, N, d], 0, 1, 'float32', seed);
   const noise = tf.unstack(eps) as tf.Tensor2D[];
@@ -45,9 +48,8 @@ export function computeLogWeights(
   const zs: tf.Tensor2D[] = [];
   const logDets: tf.Tensor1D[] = [];
   for (let t = 0; t < T; t++) {
-    const pre = tf.add(tf.matMul(hPrev, wCtx), biases) as tf.Tensor2D;
-    const [propCtx, infPre, genPre] = tf.split(pre, [P, inf.contextWidth, gen.contextWidth], 1) as tf.Tensor2D[];
-    const propPre = tf.reshape(tf.add(tf.reshape(propCtx as tf.Tensor2D, [k, B, P]), bSteps[t] as tf.Tensor2D), [N, P]);
+    const pre = tf.add(tf.matMul(hPrev, wCtx), biasSteps[t] as tf.Tensor2D) as tf.Tensor2D;
+    const [propPre, infPre, genPre] = tf.split(pre, [P, inf.contextWidth, gen.contextWidth], 1) as tf.Tensor2D[];
     // Proposal q(xi_t | h_{t-1}, b_t) = N(m, diag(s^2)), s = softplus(.) + 1e-4; reparameterised sample.
     const [mean, scalePre] = tf.split(tf.add(tf.matMul(tf.tanh(propPre as tf.Tensor2D), p('prop.w2')), p('prop.b2')), 2, 1);
     const std = boundedScale(scalePre as tf.Tensor);
