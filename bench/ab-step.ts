@@ -2,7 +2,7 @@
  * A/B timing of the reference training step, interleaved in one process (the machine may be shared: compare
  * variants only within one run). Each variant is "<tree>:<kernels>": tree `new` (this checkout) or `base`
  * (a copy of an older `shared/` under --base <dir>), kernels a '+'-list of step kernels to enable (mm, tanh,
- * identity) or `stock`. Reports CPU ms per step (process.cpuUsage) and kernels per step (tf.profile).
+ * identity, concat) or `stock`. Reports CPU ms per step (process.cpuUsage) and kernels per step (tf.profile).
  *   npx tsx bench/ab-step.ts --base /tmp/base --rounds 6 --steps 4 base:stock new:stock new:mm+tanh+identity
  */
 import { readFileSync } from 'node:fs';
@@ -47,7 +47,7 @@ const batches = Array.from({ length: 16 }, () => encodeBatch(batcher.next(), alp
 interface Variant { label: string; kernels: string[]; step: () => number; }
 async function makeVariant(spec: string): Promise<Variant> {
   const [tree, ks] = spec.split(':') as [string, string];
-  const dir = tree === 'base' ? resolve(values.base ?? '') + '/shared' : join(root, 'shared');
+  const dir = tree === 'new' ? join(root, 'shared') : tree === 'base' ? resolve(values.base ?? '') + '/shared' : resolve(tree) + '/shared';
   const { StateSpaceModel } = await import(join(dir, 'model/ssm.ts'));
   const { defaultSsmSettings } = await import(join(dir, 'model/ssm-settings.ts'));
   const { SsmTrainer } = await import(join(dir, 'model/trainer.ts'));

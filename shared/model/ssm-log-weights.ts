@@ -2,7 +2,7 @@
  * The per-sample log-weight log W of MODEL.md section 5, for K proposal samples per word, written for few
  * kernel launches (per-kernel overhead dominates at these sizes):
  * - every conditioner's product with h_{t-1} (proposal and each layer of both flows) is one matmul per step;
- * - all first-layer biases and the proposal's word-level input b_t (tiled over the K samples for all steps at
+ * - all first-layer biases and the proposal's word-level input b_t (repeated for the K samples, all steps at
  *   once) are added in one add per step;
  * - the observation term and the Gaussian terms of all steps are computed after the loop, on [T, K, B, ...]
  *   stacks, and masked by one multiply.
@@ -37,9 +37,12 @@ export function computeLogWeights(
   const enc = m.encodeBackward(batch); // [T, B, H]
   const bProj = tf.reshape(tf.add(tf.matMul(tf.reshape(enc, [T * B, H]), p('prop.wb')), p('prop.b1')), [T, B, P]);
   // Every first-layer term that does not depend on h_{t-1}, for all steps at once: the proposal's word-level
-  // input (with prop.b1) tiled over the K samples, then both flows' first-layer biases. [T, N, P + flow widths]
-  const flowBiases = tf.tile(tf.reshape(tf.concat([inf.contextB, gen.contextB]), [1, 1, -1]), [T, N, 1]);
-  const biasSteps = tf.unstack(tf.concat([tf.tile(bProj, [1, k, 1]), flowBiases], 2)) as tf.Tensor2D[];
+  // input (with prop.b1) repeated for the K samples, then both flows' first-layer biases. [T, N, P + flow widths]
+  // (Broadcast onto zeros rather than tf.tile: the gradient of tile is a slice and an add per copy.)
+  const flowB = tf.concat([inf.contextB, gen.contextB]);
+  const flowBiases = tf.add(tf.zeros([T, N, flowB.shape[0]]), flowB);
+  const propInput = tf.reshape(tf.add(tf.zeros([T, k, B, P]), tf.reshape(bProj, [T, 1, B, P])), [T, N, P]);
+  const biasSteps = tf.unstack(tf.concat([propInput, flowBiases], 2)) as tf.Tensor2D[];
   const wCtx = tf.concat([p('prop.wh'), inf.contextW, gen.contextW], 1); // [d, P + widths of both flows]
   const eps = tf.randomNormal([T, N, d], 0, 1, 'float32', seed);
   const noise = tf.unstack(eps) as tf.Tensor2D[];
