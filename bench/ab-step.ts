@@ -19,7 +19,7 @@ import { createRng } from '../shared/data/random';
 
 const { values, positionals } = parseArgs({
   allowPositionals: true,
-  options: { base: { type: 'string' }, rounds: { type: 'string' }, steps: { type: 'string' }, state: { type: 'string' }, k: { type: 'string' } },
+  options: { gru: { type: 'boolean' }, base: { type: 'string' }, rounds: { type: 'string' }, steps: { type: 'string' }, state: { type: 'string' }, k: { type: 'string' } },
 });
 const rounds = Number(values.rounds ?? 6);
 const steps = Number(values.steps ?? 4);
@@ -48,6 +48,13 @@ interface Variant { label: string; kernels: string[]; step: () => number; }
 async function makeVariant(spec: string): Promise<Variant> {
   const [tree, ks] = spec.split(':') as [string, string];
   const dir = tree === 'new' ? join(root, 'shared') : tree === 'base' ? resolve(values.base ?? '') + '/shared' : resolve(tree) + '/shared';
+  if (values.gru) {
+    const { GruLanguageModel, GruTrainer } = await import(join(dir, 'model/gru-lm.ts'));
+    const gru = new GruLanguageModel({ vocabSize: alphabet.size, stateSize, embedSize: 16, obsHidden: 0 }, 1);
+    const gt = new GruTrainer(gru, { learningRate: 0.01, clipNorm: 5 });
+    let j = 0;
+    return { label: spec, kernels: ks === 'stock' ? [] : ks.split('+'), step: () => gt.step(batches[j++ % batches.length]!).loss };
+  }
   const { StateSpaceModel } = await import(join(dir, 'model/ssm.ts'));
   const { defaultSsmSettings } = await import(join(dir, 'model/ssm-settings.ts'));
   const { SsmTrainer } = await import(join(dir, 'model/trainer.ts'));

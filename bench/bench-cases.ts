@@ -109,6 +109,8 @@ export interface ScoringCase {
   tMax: number;
   stateSize: number;
   seconds: number;
+  /** Process CPU seconds (user + system) of the pass. */
+  cpuSeconds: number;
   wordsPerSecond: number;
 }
 
@@ -120,10 +122,15 @@ export function scoringCase(vocabulary: string[], alphabet: Alphabet, trajectori
   const seqs = vocabulary.map((w) => encodeWord(w, alphabet));
   const tMax = seqs.reduce((m, s) => Math.max(m, s.length), 1);
   sharedTrajectoryLogProbs(model, seqs.slice(0, 64), { samples: 16, seed: 1 }); // warm-up
+  const c0 = process.cpuUsage();
   const t0 = performance.now();
   const lp = sharedTrajectoryLogProbs(model, seqs, { samples: trajectories, seed: 2 });
   const seconds = (performance.now() - t0) / 1000;
+  const cpu = process.cpuUsage(c0);
   model.dispose();
   if (lp.some((x) => !Number.isFinite(x))) throw new Error('Scoring produced a non-finite log-probability.');
-  return { words: vocabulary.length, trajectories, tMax, stateSize, seconds, wordsPerSecond: vocabulary.length / seconds };
+  return {
+    words: vocabulary.length, trajectories, tMax, stateSize, seconds, cpuSeconds: (cpu.user + cpu.system) / 1e6,
+    wordsPerSecond: vocabulary.length / seconds,
+  };
 }

@@ -64,7 +64,7 @@ for (const c of [reference, ...variants]) { cases.push(await ssmStepCase(c, corp
 cases.push(await gruStepCase('GRU baseline: state 8, batch 64', 8, 64, corpus.words, alphabet, steps, warmup)); log(cases.at(-1)!);
 const vocab = vocabulary20k();
 const scoring = scoringCase(vocab, buildAlphabet(vocab), 256, 8);
-process.stderr.write(`wasm scoring ${scoring.words} words with S = ${scoring.trajectories}: ${scoring.seconds.toFixed(2)} s\n`);
+process.stderr.write(`wasm scoring ${scoring.words} words with S = ${scoring.trajectories}: ${scoring.seconds.toFixed(2)} s (${scoring.cpuSeconds.toFixed(2)} s CPU)\n`);
 await initNodeBackend('cpu');
 cases.push(await ssmStepCase({ ...reference }, corpus.words, alphabet, Math.max(2, Math.round(steps / 3)), 1)); log(cases.at(-1)!);
 
@@ -90,6 +90,6 @@ updateReadme(join(root, 'README.md'), [
   ...cases.map(row),
   '',
   `Scoring a ${scoring.words.toLocaleString('en')}-word vocabulary with S = ${scoring.trajectories} shared prior trajectories ` +
-    `(state ${scoring.stateSize}, up to ${scoring.tMax} steps): ${scoring.seconds.toFixed(2)} s (WASM).`,
+    `(state ${scoring.stateSize}, up to ${scoring.tMax} steps): ${scoring.seconds.toFixed(2)} s wall, ${scoring.cpuSeconds.toFixed(2)} s CPU (WASM).`,
 ].join('\n'));
 process.stderr.write('Wrote bench/results/node.json and the README section.\n');
