@@ -49,7 +49,10 @@ export function computeLogWeights(
   let hPrev = tf.add(tf.zeros([N, d]), p('h0')) as tf.Tensor2D;
   const states: tf.Tensor2D[] = [];
   const zs: tf.Tensor2D[] = [];
-  const logDets: tf.Tensor1D[] = [];
+  // Per-step pieces of the log-determinant terms, combined after the loop (same additions in the same order).
+  const stds: tf.Tensor2D[] = [];
+  const genLogDets: tf.Tensor1D[] = [];
+  const infLogDets: tf.Tensor1D[] = [];
   for (let t = 0; t < T; t++) {
     const pre = tf.add(tf.matMul(hPrev, wCtx), biasSteps[t] as tf.Tensor2D) as tf.Tensor2D;
     const [propPre, infPre, genPre] = tf.split(pre, [P, inf.contextWidth, gen.contextWidth], 1) as tf.Tensor2D[];
@@ -59,7 +62,9 @@ export function computeLogWeights(
     const xi = tf.add(mean as tf.Tensor, tf.mul(std, noise[t] as tf.Tensor2D)) as tf.Tensor2D;
     const q = inf.forward(infPre as tf.Tensor2D, xi); // h_t and log |det d f_q / d xi|
     const g = gen.inverse(genPre as tf.Tensor2D, q.y); // eps_t = f_g^{-1}(h_t) and its log-det
-    logDets.push(tf.add(tf.add(tf.sum(tf.log(std), 1), g.logdet), q.logdet) as tf.Tensor1D);
+    stds.push(std as tf.Tensor2D);
+    genLogDets.push(g.logdet);
+    infLogDets.push(q.logdet);
     zs.push(g.z);
     states.push(q.y);
     hPrev = q.y;
@@ -68,7 +73,8 @@ export function computeLogWeights(
   // log N(eps_t; 0, I) + logdet_g - log N(xi_t; m, s^2) + logdet_q; the -d/2 log(2 pi) terms cancel:
   // = 0.5 * (|e|^2 - |eps_t|^2) + sum log s + logdet_g + logdet_q   (xi = m + s * e).
   const quadratic = tf.mul(tf.sub(tf.sum(tf.square(eps), 2), tf.sum(tf.square(tf.stack(zs, 0)), 2)), 0.5);
-  const latent = tf.reshape(tf.add(quadratic, tf.stack(logDets, 0)), [T, k, B]);
+  const logDets = tf.add(tf.add(tf.sum(tf.log(tf.stack(stds, 0)), 2), tf.stack(genLogDets, 0)), tf.stack(infLogDets, 0));
+  const latent = tf.reshape(tf.add(quadratic, logDets), [T, k, B]);
   // log p(w_t | h_t) for all steps at once: one-hot targets [T, 1, B, V] broadcast over the K samples.
   const logProbs = tf.reshape(tf.logSoftmax(m.observationLogits(tf.reshape(hs, [T * N, d]) as tf.Tensor2D)), [T, k, B, V]);
   const idsT = tf.transpose(tf.tensor2d(batch.ids, [B, T], 'int32'));
