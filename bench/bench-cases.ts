@@ -23,6 +23,8 @@ export interface StepCase {
   stepsPerSecond: number;
   wordsPerSecond: number;
   msPerStep: number;
+  /** Process CPU time per step (user + system), ms: less sensitive than wall time to other work on the machine. */
+  cpuMsPerStep: number;
   /** Kernels dispatched by one training step (tf.profile). */
   opsPerStep: number;
   /** Tensors alive after the timed steps minus before (0 = no leak). */
@@ -44,10 +46,14 @@ async function opsOf(fn: () => void): Promise<number> {
   return info.kernels.length;
 }
 
-function time(steps: number, fn: () => void): number {
+/** Wall seconds and CPU milliseconds per step of `steps` calls. */
+function time(steps: number, fn: () => void): { seconds: number; cpuMsPerStep: number } {
+  const c0 = process.cpuUsage();
   const t0 = performance.now();
   for (let i = 0; i < steps; i++) fn();
-  return (performance.now() - t0) / 1000;
+  const seconds = (performance.now() - t0) / 1000;
+  const c = process.cpuUsage(c0);
+  return { seconds, cpuMsPerStep: (c.user + c.system) / 1000 / steps };
 }
 
 export async function ssmStepCase(c: SsmCaseSettings, words: WordCount[], alphabet: Alphabet, steps: number, warmup: number): Promise<StepCase> {
@@ -61,13 +67,13 @@ export async function ssmStepCase(c: SsmCaseSettings, words: WordCount[], alphab
   const step = () => { trainer.step(batches[i++ % batches.length]!); };
   for (let w = 0; w < warmup; w++) step();
   const before = tf.memory().numTensors;
-  const seconds = time(steps, step);
+  const { seconds, cpuMsPerStep } = time(steps, step);
   const tensorDelta = tf.memory().numTensors - before;
   const ops = await opsOf(step);
   const out = {
     name: c.name, model: 'ssm' as const, backend: tf.getBackend(), stateSize: c.stateSize, k: c.k, batchSize: c.batchSize, steps,
     parameterCount: model.parameterCount, stepsPerSecond: steps / seconds, wordsPerSecond: (steps * c.batchSize) / seconds,
-    msPerStep: (1000 * seconds) / steps, opsPerStep: ops, tensorDelta,
+    msPerStep: (1000 * seconds) / steps, cpuMsPerStep, opsPerStep: ops, tensorDelta,
   };
   trainer.dispose();
   model.dispose();
@@ -84,13 +90,13 @@ export async function gruStepCase(name: string, stateSize: number, batchSize: nu
   const step = () => { trainer.step(batches[i++ % batches.length]!); };
   for (let w = 0; w < warmup; w++) step();
   const before = tf.memory().numTensors;
-  const seconds = time(steps, step);
+  const { seconds, cpuMsPerStep } = time(steps, step);
   const tensorDelta = tf.memory().numTensors - before;
   const ops = await opsOf(step);
   const out = {
     name, model: 'gru' as const, backend: tf.getBackend(), stateSize, k: 0, batchSize, steps, parameterCount: model.parameterCount,
     stepsPerSecond: steps / seconds, wordsPerSecond: (steps * batchSize) / seconds, msPerStep: (1000 * seconds) / steps,
-    opsPerStep: ops, tensorDelta,
+    cpuMsPerStep, opsPerStep: ops, tensorDelta,
   };
   trainer.dispose();
   model.dispose();
@@ -103,6 +109,8 @@ export interface ScoringCase {
   tMax: number;
   stateSize: number;
   seconds: number;
+  /** Process CPU seconds (user + system) of the pass. */
+  cpuSeconds: number;
   wordsPerSecond: number;
 }
 
@@ -114,10 +122,15 @@ export function scoringCase(vocabulary: string[], alphabet: Alphabet, trajectori
   const seqs = vocabulary.map((w) => encodeWord(w, alphabet));
   const tMax = seqs.reduce((m, s) => Math.max(m, s.length), 1);
   sharedTrajectoryLogProbs(model, seqs.slice(0, 64), { samples: 16, seed: 1 }); // warm-up
+  const c0 = process.cpuUsage();
   const t0 = performance.now();
   const lp = sharedTrajectoryLogProbs(model, seqs, { samples: trajectories, seed: 2 });
   const seconds = (performance.now() - t0) / 1000;
+  const cpu = process.cpuUsage(c0);
   model.dispose();
   if (lp.some((x) => !Number.isFinite(x))) throw new Error('Scoring produced a non-finite log-probability.');
-  return { words: vocabulary.length, trajectories, tMax, stateSize, seconds, wordsPerSecond: vocabulary.length / seconds };
+  return {
+    words: vocabulary.length, trajectories, tMax, stateSize, seconds, cpuSeconds: (cpu.user + cpu.system) / 1e6,
+    wordsPerSecond: vocabulary.length / seconds,
+  };
 }

@@ -57,14 +57,14 @@ const corpus = demoCorpus();
 const alphabet = buildAlphabet(corpus.words.map((w) => w.word));
 const cases: StepCase[] = [];
 const log = (c: StepCase) => process.stderr.write(`${c.backend.padEnd(4)} ${c.name.padEnd(36)} ${c.stepsPerSecond.toFixed(2).padStart(7)} steps/s ` +
-  `${c.wordsPerSecond.toFixed(0).padStart(6)} words/s  ${c.opsPerStep} ops/step  tensors +${c.tensorDelta}\n`);
+  `${c.wordsPerSecond.toFixed(0).padStart(6)} words/s ${c.cpuMsPerStep.toFixed(0).padStart(5)} CPU ms/step  ${c.opsPerStep} kernels/step  tensors +${c.tensorDelta}\n`);
 
 await initNodeBackend('wasm');
 for (const c of [reference, ...variants]) { cases.push(await ssmStepCase(c, corpus.words, alphabet, steps, warmup)); log(cases.at(-1)!); }
 cases.push(await gruStepCase('GRU baseline: state 8, batch 64', 8, 64, corpus.words, alphabet, steps, warmup)); log(cases.at(-1)!);
 const vocab = vocabulary20k();
 const scoring = scoringCase(vocab, buildAlphabet(vocab), 256, 8);
-process.stderr.write(`wasm scoring ${scoring.words} words with S = ${scoring.trajectories}: ${scoring.seconds.toFixed(2)} s\n`);
+process.stderr.write(`wasm scoring ${scoring.words} words with S = ${scoring.trajectories}: ${scoring.seconds.toFixed(2)} s (${scoring.cpuSeconds.toFixed(2)} s CPU)\n`);
 await initNodeBackend('cpu');
 cases.push(await ssmStepCase({ ...reference }, corpus.words, alphabet, Math.max(2, Math.round(steps / 3)), 1)); log(cases.at(-1)!);
 
@@ -72,24 +72,24 @@ const results = {
   createdAt: new Date().toISOString(),
   machine: { cpu: cpus()[0]?.model ?? 'unknown', cores: cpus().length, node: process.version, loadAverageAtStart: startLoad, loadAverageAtEnd: loadavg()[0] },
   corpus: corpus.name, timedSteps: steps, warmupSteps: warmup,
-  notes: 'Single-threaded TF.js in Node (WASM with SIMD; CPU = plain JS kernels). opsPerStep counts kernels dispatched by one training step (tf.profile).',
+  notes: 'Single-threaded TF.js in Node (WASM with SIMD; CPU = plain JS kernels). opsPerStep counts the kernels dispatched by one training step (tf.profile); cpuMsPerStep is process CPU time (user + system) per timed step.',
   cases, scoring,
 };
 mkdirSync(join(root, 'bench', 'results'), { recursive: true });
 writeFileSync(join(root, 'bench', 'results', 'node.json'), `${JSON.stringify(results, null, 1)}\n`);
 
-const row = (c: StepCase) => `| ${c.name} | ${c.backend} | ${c.parameterCount} | ${c.stepsPerSecond.toFixed(2)} | ${c.wordsPerSecond.toFixed(0)} | ${c.opsPerStep} |`;
+const row = (c: StepCase) => `| ${c.name} | ${c.backend} | ${c.parameterCount} | ${c.stepsPerSecond.toFixed(2)} | ${c.wordsPerSecond.toFixed(0)} | ${c.cpuMsPerStep.toFixed(0)} | ${c.opsPerStep} |`;
 updateReadme(join(root, 'README.md'), [
   `Measured ${results.createdAt.slice(0, 10)} on ${results.machine.cpu} (${results.machine.cores} cores), Node ${results.machine.node}, ` +
     `one thread; corpus ${corpus.name}; ${steps} timed steps after ${warmup} warm-up steps. Generative flow: 2 coupling layers + ` +
     'diagonal shift-scale; inference flow: diagonal shift-scale; inference GRU width 64. ' +
     `Load average ${startLoad?.toFixed(1)} → ${results.machine.loadAverageAtEnd?.toFixed(1)} during the run (other work on the machine slows every figure).`,
   '',
-  '| case | backend | parameters | steps/s | words/s | ops/step |',
-  '|---|---|---:|---:|---:|---:|',
+  '| case | backend | parameters | steps/s | words/s | CPU ms/step | kernels/step |',
+  '|---|---|---:|---:|---:|---:|---:|',
   ...cases.map(row),
   '',
   `Scoring a ${scoring.words.toLocaleString('en')}-word vocabulary with S = ${scoring.trajectories} shared prior trajectories ` +
-    `(state ${scoring.stateSize}, up to ${scoring.tMax} steps): ${scoring.seconds.toFixed(2)} s (WASM).`,
+    `(state ${scoring.stateSize}, up to ${scoring.tMax} steps): ${scoring.seconds.toFixed(2)} s wall, ${scoring.cpuSeconds.toFixed(2)} s CPU (WASM).`,
 ].join('\n'));
 process.stderr.write('Wrote bench/results/node.json and the README section.\n');

@@ -15,7 +15,7 @@
 import * as tf from '@tensorflow/tfjs-core';
 import type { EncodedBatch } from '../data/encode';
 import { createRng, type Rng } from '../data/random';
-import { Adam } from './adam';
+import { Adam, flattenTensors } from './adam';
 import { NonFiniteLossError } from './trainer';
 import { ParamSet, glorot, zeros, type NamedWeights, type ParamSpecs } from './params';
 
@@ -168,14 +168,14 @@ export class GruTrainer {
     const read = tf.tidy(() => {
       const vars = this.model.variables;
       const { value, grads } = tf.variableGrads(() => tf.neg(tf.mean(this.model.logLikelihood(batch))) as tf.Scalar, vars);
-      const list = vars.map((v) => grads[v.name] as tf.Tensor);
-      const norm = tf.sqrt(tf.addN(list.map((g) => tf.sum(tf.square(g)))));
+      const flat = flattenTensors(vars.map((v) => grads[v.name] as tf.Tensor));
+      const norm = tf.sqrt(tf.sum(tf.square(flat)));
       const both = tf.stack([value, norm]).dataSync(); // the one read of the step
       const loss = both[0] as number;
       const gradNorm = both[1] as number;
       if (!Number.isFinite(loss) || !Number.isFinite(gradNorm)) return { loss, gradNorm, ok: false };
       const factor = this.train.clipNorm > 0 ? Math.min(1, this.train.clipNorm / Math.max(gradNorm, 1e-12)) : 1;
-      this.adam.apply(factor === 1 ? list : list.map((g) => tf.mul(g, factor)));
+      this.adam.applyFlat(factor === 1 ? flat : (tf.mul(flat, factor) as tf.Tensor1D));
       return { loss, gradNorm, ok: true };
     });
     if (!read.ok) throw new NonFiniteLossError(this.adam.t + 1, this.adam.t);

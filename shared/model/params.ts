@@ -117,7 +117,8 @@ export class ParamSet {
     for (const name of this.names) {
       const spec = specs[name] as ParamSpec;
       const values = initialValues(spec, rng.fork(name));
-      this.variables[name] = tf.variable(tf.tensor(values, spec.shape, 'float32'), true);
+      // In a tidy: the initial-value tensor would otherwise stay registered next to the variable (a leak per weight).
+      this.variables[name] = tf.tidy(() => tf.variable(tf.tensor(values, spec.shape, 'float32'), true));
     }
   }
 

@@ -2,7 +2,8 @@
  * The per-sample log-weight log W of MODEL.md section 5, for K proposal samples per word, written for few
  * kernel launches (per-kernel overhead dominates at these sizes):
  * - every conditioner's product with h_{t-1} (proposal and each layer of both flows) is one matmul per step;
- * - all first-layer biases are added in one add per step (the proposal's word-level input b_t in one more);
+ * - all first-layer biases and the proposal's word-level input b_t (repeated for the K samples, all steps at
+ *   once) are added in one add per step;
  * - the observation term and the Gaussian terms of all steps are computed after the loop, on [T, K, B, ...]
  *   stacks, and masked by one multiply.
  */
@@ -35,26 +36,35 @@ export function computeLogWeights(
   // Rows are k*B + b (sample k of word b); word-level inputs are broadcast over the K samples once per call.
   const enc = m.encodeBackward(batch); // [T, B, H]
   const bProj = tf.reshape(tf.add(tf.matMul(tf.reshape(enc, [T * B, H]), p('prop.wb')), p('prop.b1')), [T, B, P]);
-  const bSteps = tf.unstack(bProj) as tf.Tensor2D[]; // [B, P] each, broadcast over the K samples below
-  const biases = tf.concat([tf.zeros([P]), inf.contextB, gen.contextB]); // prop.b1 is already in bProj
+  // Every first-layer term that does not depend on h_{t-1}, for all steps at once: the proposal's word-level
+  // input (with prop.b1) repeated for the K samples, then both flows' first-layer biases. [T, N, P + flow widths]
+  // (Broadcast onto zeros rather than tf.tile: the gradient of tile is a slice and an add per copy.)
+  const flowB = tf.concat([inf.contextB, gen.contextB]);
+  const flowBiases = tf.add(tf.zeros([T, N, flowB.shape[0]]), flowB);
+  const propInput = tf.reshape(tf.add(tf.zeros([T, k, B, P]), tf.reshape(bProj, [T, 1, B, P])), [T, N, P]);
+  const biasSteps = tf.unstack(tf.concat([propInput, flowBiases], 2)) as tf.Tensor2D[];
   const wCtx = tf.concat([p('prop.wh'), inf.contextW, gen.contextW], 1); // [d, P + widths of both flows]
   const eps = tf.randomNormal([T, N, d], 0, 1, 'float32', seed);
   const noise = tf.unstack(eps) as tf.Tensor2D[];
   let hPrev = tf.add(tf.zeros([N, d]), p('h0')) as tf.Tensor2D;
   const states: tf.Tensor2D[] = [];
   const zs: tf.Tensor2D[] = [];
-  const logDets: tf.Tensor1D[] = [];
+  // Per-step pieces of the log-determinant terms, combined after the loop (same additions in the same order).
+  const stds: tf.Tensor2D[] = [];
+  const genLogDets: tf.Tensor1D[] = [];
+  const infLogDets: tf.Tensor1D[] = [];
   for (let t = 0; t < T; t++) {
-    const pre = tf.add(tf.matMul(hPrev, wCtx), biases) as tf.Tensor2D;
-    const [propCtx, infPre, genPre] = tf.split(pre, [P, inf.contextWidth, gen.contextWidth], 1) as tf.Tensor2D[];
-    const propPre = tf.reshape(tf.add(tf.reshape(propCtx as tf.Tensor2D, [k, B, P]), bSteps[t] as tf.Tensor2D), [N, P]);
+    const pre = tf.add(tf.matMul(hPrev, wCtx), biasSteps[t] as tf.Tensor2D) as tf.Tensor2D;
+    const [propPre, infPre, genPre] = tf.split(pre, [P, inf.contextWidth, gen.contextWidth], 1) as tf.Tensor2D[];
     // Proposal q(xi_t | h_{t-1}, b_t) = N(m, diag(s^2)), s = softplus(.) + 1e-4; reparameterised sample.
     const [mean, scalePre] = tf.split(tf.add(tf.matMul(tf.tanh(propPre as tf.Tensor2D), p('prop.w2')), p('prop.b2')), 2, 1);
     const std = boundedScale(scalePre as tf.Tensor);
     const xi = tf.add(mean as tf.Tensor, tf.mul(std, noise[t] as tf.Tensor2D)) as tf.Tensor2D;
     const q = inf.forward(infPre as tf.Tensor2D, xi); // h_t and log |det d f_q / d xi|
     const g = gen.inverse(genPre as tf.Tensor2D, q.y); // eps_t = f_g^{-1}(h_t) and its log-det
-    logDets.push(tf.add(tf.add(tf.sum(tf.log(std), 1), g.logdet), q.logdet) as tf.Tensor1D);
+    stds.push(std as tf.Tensor2D);
+    genLogDets.push(g.logdet);
+    infLogDets.push(q.logdet);
     zs.push(g.z);
     states.push(q.y);
     hPrev = q.y;
@@ -63,7 +73,8 @@ export function computeLogWeights(
   // log N(eps_t; 0, I) + logdet_g - log N(xi_t; m, s^2) + logdet_q; the -d/2 log(2 pi) terms cancel:
   // = 0.5 * (|e|^2 - |eps_t|^2) + sum log s + logdet_g + logdet_q   (xi = m + s * e).
   const quadratic = tf.mul(tf.sub(tf.sum(tf.square(eps), 2), tf.sum(tf.square(tf.stack(zs, 0)), 2)), 0.5);
-  const latent = tf.reshape(tf.add(quadratic, tf.stack(logDets, 0)), [T, k, B]);
+  const logDets = tf.add(tf.add(tf.sum(tf.log(tf.stack(stds, 0)), 2), tf.stack(genLogDets, 0)), tf.stack(infLogDets, 0));
+  const latent = tf.reshape(tf.add(quadratic, logDets), [T, k, B]);
   // log p(w_t | h_t) for all steps at once: one-hot targets [T, 1, B, V] broadcast over the K samples.
   const logProbs = tf.reshape(tf.logSoftmax(m.observationLogits(tf.reshape(hs, [T * N, d]) as tf.Tensor2D)), [T, k, B, V]);
   const idsT = tf.transpose(tf.tensor2d(batch.ids, [B, T], 'int32'));

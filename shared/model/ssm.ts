@@ -7,7 +7,7 @@ import * as tf from '@tensorflow/tfjs-core';
 import { createRng, type Rng } from '../data/random';
 import type { EncodedBatch } from '../data/encode';
 import { createFlow, type ConditionalFlow } from './flows/flow';
-import { gruStep } from './gru-cell';
+import { backwardGruSequence } from './gru-sequence';
 import { checkWeightShapes, ParamSet, type NamedWeights } from './params';
 import { computeLogWeights } from './ssm-log-weights';
 import { flowDimsOf, ssmCoreParamSpecs, ssmParamSpecs, validateSsmSettings, type SsmSettings } from './ssm-settings';
@@ -141,16 +141,7 @@ export class StateSpaceModel {
       // kernel also returns zeros when asked for float32 directly, hence int32 + cast.)
       const emb = tf.matMul(tf.cast(tf.oneHot(tf.reshape(ids, [T * B]), this.settings.vocabSize), 'float32'), p('enc.embed'));
       const xProj = tf.reshape(tf.add(tf.matMul(emb, p('enc.wx')), p('enc.bx')), [T, B, 3 * H]);
-      const xs = tf.unstack(xProj) as tf.Tensor2D[]; // one kernel instead of a slice per step
-      const masks = tf.unstack(tf.expandDims(mask, 2)) as tf.Tensor2D[]; // [B, 1] each
-      let b = tf.zeros([B, H]) as tf.Tensor2D;
-      const out: tf.Tensor2D[] = new Array(T);
-      for (let t = T - 1; t >= 0; t--) {
-        const next = gruStep(xs[t] as tf.Tensor2D, b, p('enc.wh') as tf.Tensor2D, p('enc.bh') as tf.Tensor1D);
-        b = tf.add(b, tf.mul(masks[t] as tf.Tensor2D, tf.sub(next, b))) as tf.Tensor2D;
-        out[t] = b;
-      }
-      return tf.stack(out, 0) as tf.Tensor3D;
+      return backwardGruSequence(xProj as tf.Tensor3D, tf.expandDims(mask, 2) as tf.Tensor3D, p('enc.wh') as tf.Tensor2D, p('enc.bh') as tf.Tensor1D);
     });
   }
 

@@ -56,6 +56,24 @@ describe('SsmTrainer', () => {
     model.dispose();
   });
 
+  it('keeps the number of tensors and bytes constant over 1,000 steps, and frees them all on dispose', () => {
+    const tiny = defaultSsmSettings(alphabet.size, { stateSize: 2, flowHidden: 3, embeddingSize: 2, encoderSize: 3, proposalHidden: 3,
+      generativeFlow: [{ kind: 'coupling' }, { kind: 'diag' }] });
+    const start = tf.memory().numTensors;
+    const model = new StateSpaceModel(tiny, 'memory-1000');
+    const trainer = new SsmTrainer(model, { learningRate: 0.01, samples: 2, clipNorm: 1 });
+    const short = encodeBatch(['ab', 'ba'], alphabet);
+    trainer.step(short);
+    const before = tf.memory();
+    for (let i = 0; i < 1000; i++) trainer.step(short);
+    expect(trainer.stepCount).toBe(1001);
+    expect(tf.memory().numTensors).toBe(before.numTensors);
+    expect(tf.memory().numBytes).toBe(before.numBytes);
+    trainer.dispose();
+    model.dispose();
+    expect(tf.memory().numTensors).toBe(start);
+  }, 300_000);
+
   it('reports a warm-up figure as "not a bound" until the weight reaches 1', () => {
     const model = new StateSpaceModel(settings, 'warm');
     const trainer = new SsmTrainer(model, { learningRate: 0.01, samples: 2, clipNorm: 0, warmupSteps: 3 });

@@ -6,7 +6,7 @@
 import * as tf from '@tensorflow/tfjs-core';
 import type { EncodedBatch } from '../data/encode';
 import { createRng } from '../data/random';
-import { Adam } from './adam';
+import { Adam, flattenTensors } from './adam';
 import { iwaeBound, natsToBits } from './bounds';
 import type { NamedWeights } from './params';
 import type { StateSpaceModel } from './ssm';
@@ -59,7 +59,8 @@ export function clipByGlobalNorm(grads: tf.Tensor[], norm: number, clip: number)
 }
 
 interface Snapshot {
-  weights: tf.Tensor[];
+  /** Flat weights (the layout of `Adam.applyFlat`). */
+  weights: tf.Tensor1D;
   optimizer: ReturnType<Adam['snapshot']>;
 }
 
@@ -117,15 +118,19 @@ export class SsmTrainer {
         const { logW } = this.model.logWeights(batch, K, { seed: noiseSeed, klWeight: beta });
         return tf.neg(tf.mean(iwaeBound(logW))) as tf.Scalar;
       }, this.vars);
-      const gradList = this.vars.map((v) => grads[v.name] as tf.Tensor);
-      const norm = globalNorm(gradList);
+      const flat = flattenTensors(this.vars.map((v) => grads[v.name] as tf.Tensor));
+      const norm = tf.sqrt(tf.sum(tf.square(flat)));
       stats = tf.stack([value, norm]).dataSync() as Float32Array;
       if (!Number.isFinite(stats[0]) || !Number.isFinite(stats[1])) {
         failed = true;
         return;
       }
-      this.saveLastGood();
-      this.adam.apply(clipByGlobalNorm(gradList, stats[1] as number, clip));
+      // The roll-back point: the weights and moments that gave this finite loss (shared, not copied).
+      this.dropLastGood();
+      const optimizer = this.adam.snapshot();
+      const factor = clip > 0 ? Math.min(1, clip / Math.max(stats[1] as number, 1e-12)) : 1;
+      const weights = this.adam.applyFlat(factor === 1 ? flat : (tf.mul(flat, factor) as tf.Tensor1D), true) as tf.Tensor1D;
+      this.lastGood = { weights, optimizer };
     });
     if (failed) {
       this.rollBack();
@@ -164,22 +169,17 @@ export class SsmTrainer {
     return this.adam.learningRate;
   }
 
-  private saveLastGood(): void {
-    this.dropLastGood();
-    this.lastGood = { weights: this.vars.map((v) => tf.keep(v.clone())), optimizer: this.adam.snapshot() };
-  }
-
   /** Back to the weights (and optimiser state) that produced the last finite loss. */
   private rollBack(): void {
     const s = this.lastGood;
     if (!s) return; // the first step failed: nothing was applied
-    this.vars.forEach((v, i) => v.assign(s.weights[i] as tf.Tensor));
+    this.adam.setFlatWeights(s.weights);
     this.adam.restore(s.optimizer);
   }
 
   private dropLastGood(): void {
     if (!this.lastGood) return;
-    for (const t of [...this.lastGood.weights, ...this.lastGood.optimizer.m, ...this.lastGood.optimizer.v]) t.dispose();
+    for (const t of [this.lastGood.weights, ...this.lastGood.optimizer.m, ...this.lastGood.optimizer.v]) t.dispose();
     this.lastGood = null;
   }
 

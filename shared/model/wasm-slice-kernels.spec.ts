@@ -26,6 +26,8 @@ async function both<T>(f: () => T): Promise<[T, T]> {
   await initNodeBackend('cpu');
   const cpu = onBackend('cpu', f);
   await initNodeBackend('wasm');
+  // The comparison means nothing if the WASM backend silently fell back to the CPU one.
+  expect(tf.getBackend()).toBe('wasm');
   const wasm = onBackend('wasm', f);
   return [cpu, wasm];
 }
@@ -43,6 +45,7 @@ describe('view-based WASM Slice, Unpack and SplitV kernels', () => {
   });
 
   it('are installed in place of the stock WASM kernels', () => {
+    expect(tf.getBackend()).toBe('wasm');
     for (const name of ['Slice', 'Unpack', 'SplitV']) {
       const kernel = tf.getKernel(name, 'wasm') as unknown as Record<symbol, unknown> | undefined;
       expect(kernel?.[Symbol.for('noisewright.viewSlice')]).toBe(true);

@@ -12,8 +12,9 @@
  * allocated first: allocating can grow the heap, which detaches any view made before it. Strings
  * keep the stock kernel (they do not live in the heap).
  *
- * Installed by the Node set-up (`shared/node/tf-node.ts`) and the web workers' set-up
- * (`src/app/workers/worker-backend.ts`); checked against the CPU backend in `wasm-slice-kernels.spec.ts`.
+ * Installed (through `installWasmKernels`, `wasm-kernels.ts`) by the Node set-up (`shared/node/tf-node.ts`) and
+ * the web workers' set-up (`src/app/workers/worker-backend.ts`); checked against the CPU backend in
+ * `wasm-slice-kernels.spec.ts`.
  */
 import {
   Slice,

@@ -82,20 +82,22 @@ export class CouplingFlow implements FlowLayer {
     const w2 = tf.mul(get('net.w2'), k.freeTwice);
     const b2 = tf.mul(get('net.b2'), k.freeTwice);
     const scale = tf.mul(get('scale'), k.free);
-    /** (s, t), both exactly 0 where the mask is 1; `x` is z (forward) or y (inverse): m*x is the same. */
-    const shiftScale = (ctxPre: tf.Tensor2D, x: tf.Tensor2D) => {
+    // The inverse uses -s = tanh(.) * (-scale) directly (negation is exact), saving two kernels per call.
+    const minusScale = tf.neg(scale);
+    /** (s, t) — or (-s, t) with `minusScale` — both exactly 0 where the mask is 1; `x` is z (forward) or y (inverse): m*x is the same. */
+    const shiftScale = (ctxPre: tf.Tensor2D, x: tf.Tensor2D, sScale: tf.Tensor) => {
       const h = tf.tanh(tf.add(tf.matMul(x, wz), ctxPre));
       const [sRaw, t] = tf.split(tf.add(tf.matMul(h, w2), b2), 2, 1) as [tf.Tensor2D, tf.Tensor2D];
-      return { s: tf.mul(tf.tanh(sRaw), scale) as tf.Tensor2D, t };
+      return { s: tf.mul(tf.tanh(sRaw), sScale) as tf.Tensor2D, t };
     };
     return {
       forward: (ctxPre, z) => {
-        const { s, t } = shiftScale(ctxPre, z);
+        const { s, t } = shiftScale(ctxPre, z, scale);
         return { y: tf.add(tf.mul(z, tf.exp(s)), t) as tf.Tensor2D, logdet: tf.sum(s, 1) };
       },
       inverse: (ctxPre, y) => {
-        const { s, t } = shiftScale(ctxPre, y);
-        return { z: tf.mul(tf.sub(y, t), tf.exp(tf.neg(s))) as tf.Tensor2D, logdet: tf.neg(tf.sum(s, 1)) as tf.Tensor1D };
+        const { s: minusS, t } = shiftScale(ctxPre, y, minusScale);
+        return { z: tf.mul(tf.sub(y, t), tf.exp(minusS)) as tf.Tensor2D, logdet: tf.sum(minusS, 1) };
       },
     };
   }

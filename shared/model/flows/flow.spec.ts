@@ -162,10 +162,12 @@ describe('flow construction', () => {
     const flow = randomFlow(CASES['tril + shift + coupling'] as FlowSpec[], 'leak');
     const c = randomMatrix(ROWS, CTX, 'c4');
     const z = randomMatrix(ROWS, DIM, 'z4');
+    // No tf.tidy around the calls (it would clean up a leak before the count): only the results are disposed.
     const before = tf.memory().numTensors;
-    tf.tidy(() => {
-      flow.inverse(c, flow.forward(c, z).y);
-    });
+    const fwd = flow.forward(c, z);
+    const inv = flow.inverse(c, fwd.y);
+    expect(tf.memory().numTensors).toBe(before + 4);
+    tf.dispose([fwd.y, fwd.logdet, inv.z, inv.logdet]);
     expect(tf.memory().numTensors).toBe(before);
     tf.dispose([c, z]);
     flow.dispose();

@@ -153,13 +153,21 @@ class FlowStack implements ConditionalFlow {
   }
 
   forward(c: tf.Tensor2D, z: tf.Tensor2D): FlowForward {
-    const p = this.prepare();
-    return p.forward(tf.add(tf.matMul(c, p.contextW), p.contextB) as tf.Tensor2D, z);
+    const [y, logdet] = tf.tidy(() => {
+      const p = this.prepare();
+      const r = p.forward(tf.add(tf.matMul(c, p.contextW), p.contextB) as tf.Tensor2D, z);
+      return [r.y, r.logdet];
+    });
+    return { y: y as tf.Tensor2D, logdet: logdet as tf.Tensor1D };
   }
 
   inverse(c: tf.Tensor2D, y: tf.Tensor2D): FlowInverse {
-    const p = this.prepare();
-    return p.inverse(tf.add(tf.matMul(c, p.contextW), p.contextB) as tf.Tensor2D, y);
+    const [z, logdet] = tf.tidy(() => {
+      const p = this.prepare();
+      const r = p.inverse(tf.add(tf.matMul(c, p.contextW), p.contextB) as tf.Tensor2D, y);
+      return [r.z, r.logdet];
+    });
+    return { z: z as tf.Tensor2D, logdet: logdet as tf.Tensor1D };
   }
 
   getWeights(): NamedWeights {

@@ -6,7 +6,7 @@
 import * as tf from '@tensorflow/tfjs-core';
 import '@tensorflow/tfjs-backend-cpu';
 import { getThreadsCount, setWasmPaths } from '@tensorflow/tfjs-backend-wasm';
-import { installWasmSliceKernels } from '../../../shared/model/wasm-slice-kernels';
+import { installWasmKernels } from '../../../shared/model/wasm-kernels';
 import type { BackendReport } from './trainer-session';
 
 export async function setUpWorkerBackend(): Promise<BackendReport> {
@@ -15,7 +15,7 @@ export async function setUpWorkerBackend(): Promise<BackendReport> {
   // worker cannot serve, and its thread count stays 1 in TF.js 4.22 anyway. Use the single-threaded SIMD
   // build: parallelism comes from one worker per run.
   tf.env().set('WASM_HAS_MULTITHREAD_SUPPORT', false);
-  installWasmSliceKernels(); // the stock Slice kernel copies its whole input per slice (see the file)
+  installWasmKernels(); // faster Slice, MatMul, Tanh, Identity kernels (see shared/model/wasm-*-kernels.ts)
   let ok = false;
   try {
     ok = await tf.setBackend('wasm');
