@@ -50,7 +50,7 @@ async function makeVariant(spec: string): Promise<Variant> {
   const dir = tree === 'new' ? join(root, 'shared') : tree === 'base' ? resolve(values.base ?? '') + '/shared' : resolve(tree) + '/shared';
   if (values.gru) {
     const { GruLanguageModel, GruTrainer } = await import(join(dir, 'model/gru-lm.ts'));
-    const gru = new GruLanguageModel({ vocabSize: alphabet.size, stateSize, embedSize: 16, obsHidden: 0 }, 1);
+    const gru = new GruLanguageModel({ vocabSize: alphabet.size, stateSize, embeddingSize: 16, observationHidden: 0 }, 1);
     const gt = new GruTrainer(gru, { learningRate: 0.01, clipNorm: 5 });
     let j = 0;
     return { label: spec, kernels: ks === 'stock' ? [] : ks.split('+'), step: () => gt.step(batches[j++ % batches.length]!).loss };

@@ -30,7 +30,7 @@ describe('fair claims', () => {
     // Bench 1 sends a 3-cell grid first; bench 2 sends one run afterwards.
     const grid = await request(t.app).post(`/api/benches/${f.benchId}/grids`).set(bearer(f.tokens.member)).send({
       name: 'Sizes', corpusId: corpus.id, family: 'gru', placement: 'runners',
-      baseSettings: { model: { embedSize: 2, obsHidden: 0 }, training: { steps: 10, batchSize: 4, learningRate: 0.01 } },
+      baseSettings: { model: { embeddingSize: 2, observationHidden: 0 }, training: { steps: 10, batchSize: 4, learningRate: 0.01 } },
       axes: [{ key: 'model.stateSize', values: [2, 3, 4] }],
     });
     expect(grid.status).toBe(201);
