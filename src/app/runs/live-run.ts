@@ -34,6 +34,8 @@ export class LiveRun {
   readonly engine = signal<EngineInfo | null>(null);
   /** A sentence for people when the run failed or could not start. */
   readonly problem = signal<string | null>(null);
+  /** A plain remark that is no failure (e.g. a pause that came after the last step). */
+  readonly notice = signal<string | null>(null);
   readonly samples = signal<string[]>([]);
   /** Step of the last checkpoint saved to the server in this session. */
   readonly lastSavedStep = signal<number | null>(null);
