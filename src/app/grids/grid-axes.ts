@@ -36,9 +36,9 @@ export function axisChoicesFor(family: RunFamily): AxisChoice[] {
 
 export interface GridBudget { steps: number; batchSize: number; learningRate: number; evalEvery: number; checkpointEvery: number }
 
-/** Base run settings of a grid's family from the "quick look" preset and the chosen budget. */
+/** Base run settings of a grid's family from the "short trial" preset and the chosen budget. */
 export function baseSettingsOf(family: RunFamily, budget: GridBudget): Record<string, unknown> {
-  const p = PRESETS.quick;
+  const p = PRESETS.short;
   const training = {
     steps: budget.steps, batchSize: budget.batchSize, samples: p.model.samples, learningRate: budget.learningRate,
     clipNorm: p.training.clipNorm, warmupSteps: 0, regime: 'token', seed: 1,

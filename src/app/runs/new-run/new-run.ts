@@ -15,6 +15,7 @@ import { Router, RouterLink } from '@angular/router';
 import type { CorpusSummary } from '../../../../shared/api/corpora';
 import { FLOW_KINDS, type FlowKind } from '../../../../shared/model/flows/flow';
 import { ApiError, messageOf } from '../../core/api-error';
+import { roleAtLeast } from '../../core/api-types';
 import { CurrentBench } from '../../benches/current-bench';
 import { applyServerErrors } from '../../ui/form-messages';
 import { FAMILY_LABELS, FLOW_LABELS, formatDuration } from '../run-labels';
@@ -70,6 +71,9 @@ export class NewRun {
   private readonly value = toSignal(this.form.valueChanges, { initialValue: this.form.getRawValue() });
   protected readonly family = computed(() => { this.value(); return this.form.controls.model.controls.family.value; });
   private readonly corpus = computed(() => { this.value(); return this.corpora().find((c) => c.id === this.form.controls.data.controls.corpusId.value) ?? null; });
+  protected readonly corpusName = computed(() => this.corpus()?.name ?? null);
+  /** Viewers may look at the form but not fill it in or start a run (the server refuses them too). */
+  protected readonly canStart = computed(() => roleAtLeast(this.bench.current()?.role ?? 'viewer', 'member'));
   /** Trainable scalars, from the shared/model parameter tables (null: n-gram, or a setting is invalid). */
   protected readonly parameterCount = computed(() => {
     this.value();
@@ -87,6 +91,10 @@ export class NewRun {
   });
 
   constructor() {
+    effect(() => {
+      if (this.canStart()) this.form.enable();
+      else this.form.disable();
+    });
     effect(() => {
       const id = this.benchId();
       untracked(() => {
@@ -116,6 +124,10 @@ export class NewRun {
   }
 
   protected async start(): Promise<void> {
+    if (!this.canStart()) {
+      this.problem.set('Viewers cannot start runs. Ask a coach or owner of the bench for the member role.');
+      return;
+    }
     this.form.markAllAsTouched();
     if (this.form.invalid) {
       this.problem.set('Some settings need fixing; the steps marked in red say what to change.');
