@@ -1,7 +1,7 @@
 import { DecimalPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
-import { ReactiveFormsModule, type AbstractControl, type FormControl } from '@angular/forms';
+import { FormControl, ReactiveFormsModule, Validators, type AbstractControl } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCheckboxModule } from '@angular/material/checkbox';
 import { MatChipsModule } from '@angular/material/chips';
@@ -74,6 +74,8 @@ export class NewRun {
   protected readonly corpusName = computed(() => this.corpus()?.name ?? null);
   /** Viewers may look at the form but not fill it in or start a run (the server refuses them too). */
   protected readonly canStart = computed(() => roleAtLeast(this.bench.current()?.role ?? 'viewer', 'member'));
+  /** Stands in for each step's controls for a viewer: never valid, so the steps after the first stay closed. */
+  protected readonly closedStep = new FormControl<string | null>(null, Validators.required);
   /** Trainable scalars, from the shared/model parameter tables (null: n-gram, or a setting is invalid). */
   protected readonly parameterCount = computed(() => {
     this.value();
