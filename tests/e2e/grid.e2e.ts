@@ -132,7 +132,13 @@ async function gridStory(page: Page, problems: string[]): Promise<void> {
 
   // Saved as a report: a stable link, and the CSV parses back to the runs' stored figures.
   await page.getByRole('button', { name: /Save as report/ }).click();
+  // The report asks for its title first (suggested from the runs' names).
+  const titleInput = page.getByTestId('report-title-input');
+  assert.match(await titleInput.inputValue(), /^Comparison of /);
+  await titleInput.fill('Two runs side by side');
+  await page.getByRole('button', { name: 'Create report' }).click();
   await page.waitForURL(/\/reports\/[0-9a-f-]{36}$/);
+  assert.equal((await page.getByTestId('report-title').textContent())?.trim(), 'Two runs side by side');
   await page.getByTestId('report-title').waitFor();
   await page.waitForTimeout(500);
   await screenshot(page, 'compare-02-report');

@@ -1,6 +1,7 @@
 import { DecimalPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
@@ -13,6 +14,7 @@ import { roleAtLeast } from '../../core/api-types';
 import { messageOf } from '../../core/api-error';
 import { ReportsApi } from '../../reports/reports-api';
 import { STATUS_LABELS } from '../../runs/run-labels';
+import { askReportTitle } from '../../ui/report-title-dialog/report-title-dialog';
 import { RunScheduler } from '../../runs/run-scheduler';
 import { axisChoice } from '../grid-axes';
 import { GridHeatmap } from '../grid-heatmap/grid-heatmap';
@@ -39,6 +41,7 @@ export class GridView {
   private readonly queue = inject(GridQueue);
   private readonly reports = inject(ReportsApi);
   private readonly router = inject(Router);
+  private readonly dialog = inject(MatDialog);
   protected readonly scheduler = inject(RunScheduler);
   protected readonly bench = inject(CurrentBench);
   protected readonly figures = GRID_FIGURES;
@@ -129,9 +132,11 @@ export class GridView {
   protected async saveReport(): Promise<void> {
     const g = this.grid();
     if (!g) return;
+    const title = await askReportTitle(this.dialog, g.name);
+    if (title === null) return;
     this.saving.set(true);
     try {
-      const report = await this.reports.create(this.benchId(), { kind: 'grid', title: g.name, sourceIds: [g.id] });
+      const report = await this.reports.create(this.benchId(), { kind: 'grid', title, sourceIds: [g.id] });
       await this.router.navigate(['/benches', this.benchId(), 'reports', report.id]);
     } catch (error) {
       this.problem.set(`The report could not be saved: ${messageOf(error)}`);
