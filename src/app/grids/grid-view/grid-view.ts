@@ -7,7 +7,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { Router, RouterLink } from '@angular/router';
-import { GRID_FIGURE_LABELS, GRID_FIGURES, type GridDto, type GridFigure, type LearnabilityVerdict } from '../../../../shared/api/grids';
+import { GRID_FIGURE_LABELS, GRID_FIGURES, gridAxisLabel, type GridDto, type GridFigure, type LearnabilityVerdict } from '../../../../shared/api/grids';
 import { MAX_COMPARED_RUNS } from '../../../../shared/api/reports';
 import { CurrentBench } from '../../benches/current-bench';
 import { roleAtLeast } from '../../core/api-types';
@@ -16,7 +16,6 @@ import { ReportsApi } from '../../reports/reports-api';
 import { STATUS_LABELS } from '../../runs/run-labels';
 import { askReportTitle } from '../../ui/report-title-dialog/report-title-dialog';
 import { RunScheduler } from '../../runs/run-scheduler';
-import { axisChoice } from '../grid-axes';
 import { GridHeatmap } from '../grid-heatmap/grid-heatmap';
 import { cellFigure, heatmapData } from '../grid-heatmap/heatmap-data';
 import { GridQueue } from '../grid-queue';
@@ -122,7 +121,7 @@ export class GridView {
     }
   }
 
-  protected axisLabel(key: string): string { return axisChoice(key)?.label ?? (key === 'model' ? 'Model' : key); }
+  protected axisLabel(key: string): string { return gridAxisLabel(key); }
   protected cellValue(cell: GridDto['cells'][number]): number | null { return cellFigure(cell, this.figure()); }
   protected liveStep(runId: string | undefined): number | null {
     return runId ? this.scheduler.live(runId)?.progress()?.step ?? null : null;
