@@ -57,6 +57,13 @@ export class RunView {
     const s = this.stepLine();
     return s && s.total > 0 ? Math.min(100, (100 * s.step) / s.total) : 0;
   });
+  /** At the last step the run is finishing: there is nothing left to pause. */
+  protected readonly atLastStep = computed(() => {
+    const p = this.progress();
+    return !!p && p.totalSteps > 0 && p.step >= p.totalSteps;
+  });
+  /** Live speed, or the last one the run stored. */
+  protected readonly speed = computed(() => this.progress()?.wordsPerSecond ?? this.run()?.summary.wordsPerSecond ?? null);
   /** Time left only while the worker trains: a paused or ended run has none to show. */
   protected readonly eta = computed(() => (this.live()?.state() === 'training' ? this.progress()?.etaSeconds ?? null : null));
   /** One wording for the compute, live or (after a reload) from the run's stored summary. */
