@@ -124,7 +124,7 @@ const MORE = ['maxHeldOut', 'detailWords', 'crossEntropyK', 'tMax', 'particles',
         <mat-form-field>
           <mat-label>Held-out words</mat-label>
           <input matInput type="number" formControlName="maxHeldOut" min="1" max="100000" />
-          <mat-hint>most frequent first, at most 1–100000</mat-hint>
+          <mat-hint>how many, most frequent first, 1–100000</mat-hint>
           <mat-error>Give the held-out words as a whole number from 1 to 100000.</mat-error>
         </mat-form-field>
         <mat-form-field>

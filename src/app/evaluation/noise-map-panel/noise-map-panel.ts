@@ -74,7 +74,7 @@ const RANGE = 3;
     .axis-up { writing-mode: vertical-rl; transform: rotate(180deg); font-size: 11px; color: var(--mat-sys-on-surface-variant); }
     .map { display: grid; aspect-ratio: 1; border: 1px solid var(--mat-sys-outline-variant); background: #fffdf8; }
     .cell { display: flex; align-items: center; justify-content: center; font: 600 10px var(--nw-mono); overflow: hidden; }
-    .cell.unsure { background-image: repeating-linear-gradient(45deg, rgba(255, 253, 248, 0.55) 0 2px, transparent 2px 5px); }
+    .cell.unsure { background-image: repeating-linear-gradient(45deg, rgba(255, 253, 248, 0.4) 0 1.5px, transparent 1.5px 6px); }
     .axis-across { grid-column: 2; text-align: center; font-size: 11px; color: var(--mat-sys-on-surface-variant); }
     .legend { grid-column: 3; grid-row: 1; list-style: none; margin: 0; padding: 0; display: grid; gap: 4px; align-self: start; }
     .legend li { display: flex; gap: 6px; align-items: center; }
