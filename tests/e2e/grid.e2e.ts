@@ -123,9 +123,9 @@ async function gridStory(page: Page, problems: string[]): Promise<void> {
   await page.getByRole('checkbox', { name: `Compare ${b.run!.name}` }).check();
   const table = page.getByTestId('compare-table');
   await table.waitFor();
-  const sizeRow = table.getByRole('row', { name: /State size/ });
+  const sizeRow = table.getByRole('row', { name: /^State size/ });
   assert.match((await sizeRow.textContent()) ?? '', /differs/, 'the state size row is marked as differing');
-  const seedRow = table.getByRole('row', { name: /Seed/ });
+  const seedRow = table.getByRole('row', { name: /^Seed/ });
   assert.doesNotMatch((await seedRow.textContent()) ?? '', /differs/, 'the seed row is the same for both runs');
   await page.waitForTimeout(500);
   await screenshot(page, 'compare-01-side-by-side');
