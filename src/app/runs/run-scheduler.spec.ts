@@ -235,4 +235,15 @@ describe('RunScheduler at the end of a run', () => {
     const summaries = api.update.mock.calls.map((c) => (c[2] as { summary?: { lastSamples?: string[] } }).summary?.lastSamples).filter(Boolean);
     expect(summaries.at(-1)).toEqual(['ab', 'ba']);
   });
+
+  it('keeps the latest validation figures in bits/char and bits/word for the page', async () => {
+    const { scheduler, worker } = setUp();
+    const live = await scheduler.enqueue('b1', RUN);
+    await until(() => live.state() === 'training');
+    const p = { ...progressAt(40, 80), evaluation: { step: 40, validationBitsPerChar: 2.5, validationBitsPerWord: 15, observationEntropyBits: null, noiseInformationBits: null, samples: [] } };
+    (worker.handle.api.start as unknown as { mock: { calls: [(x: TrainingProgress) => void][] } }).mock.calls[0]![0](p as TrainingProgress);
+    expect(live.lastValidation()).toEqual({ step: 40, bitsPerChar: 2.5, bitsPerWord: 15, exact: true }); // an n-gram run: exact
+    await scheduler.stop('run-1');
+  });
 });
+
