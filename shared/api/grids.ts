@@ -57,10 +57,35 @@ export function gridCoordinates(axes: readonly { values: readonly unknown[] }[])
   return out;
 }
 
-/** A short label of an axis value: flows as their layer kinds joined with `+`. */
+/** A short label of an axis value: flows as their layer kinds joined with ` + ` (e.g. "coupling + diag"). */
 export function gridValueLabel(v: unknown): string {
-  if (Array.isArray(v)) return v.map((l) => (l && typeof l === 'object' && 'kind' in l ? String((l as { kind: unknown }).kind) : String(l))).join('+');
+  if (Array.isArray(v)) return v.map((l) => (l && typeof l === 'object' && 'kind' in l ? String((l as { kind: unknown }).kind) : String(l))).join(' + ');
   return String(v);
+}
+
+/** What people read for each axis a grid can vary (the learnability check's single axis is "model"). */
+export const GRID_AXIS_LABELS: Readonly<Record<string, string>> = {
+  'model.generativeFlow': 'Generative flow',
+  'model.inferenceFlow': 'Inference flow',
+  'model.stateSize': 'State size',
+  'training.samples': 'Samples per word (K)',
+  'training.seed': 'Seed',
+  'training.learningRate': 'Learning rate',
+  'model.order': 'n-gram order',
+  model: 'Model',
+};
+
+export function gridAxisLabel(key: string): string {
+  return GRID_AXIS_LABELS[key] ?? key.split('.').pop() ?? key;
+}
+
+/** A cell's label for people: "Generative flow: coupling + diag, State size 8"; a learnability model by its name. */
+export function gridCellLabel(axes: readonly { key: string; values: readonly unknown[] }[], coords: readonly number[]): string {
+  return axes.map((a, i) => {
+    const value = gridValueLabel(a.values[coords[i]!]);
+    if (a.key === 'model') return value;
+    return Array.isArray(a.values[coords[i]!]) ? `${gridAxisLabel(a.key)}: ${value}` : `${gridAxisLabel(a.key)} ${value}`;
+  }).join(', ');
 }
 
 const gridName = z.string({ error: 'Give the grid a name.' }).trim().min(1, 'Give the grid a name.').max(120, 'Use a grid name of at most 120 characters.');

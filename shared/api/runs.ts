@@ -192,6 +192,8 @@ export const runSummarySchema = z
     backend: z.string().trim().min(1).max(40, 'Name the backend in at most 40 characters.'),
     simd: z.boolean(),
     threads: whole('a thread count', 1, 256),
+    /** The latest fresh samples, so a reloaded page can show them again. */
+    lastSamples: z.array(z.string().max(64, 'Keep each sample to 64 characters.'), { error: 'Send the samples as a list of words.' }).max(30, 'Send at most 30 samples.'),
   })
   .partial()
   .strict();

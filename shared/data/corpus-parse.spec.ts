@@ -31,7 +31,9 @@ describe('parseCorpus — whole-file problems', () => {
     const r = parse(new Uint8Array([0x61, 0x0a, 0x62, 0x0a, 0x63, 0xe9, 0x0a, 0x64]), 'a.txt');
     expect(problem(r, 'not-utf8')).toMatchObject({ line: 3, severity: 'error' });
     expect(problem(r, 'not-utf8')?.message).toMatch(/Line 3 has a byte \(0xE9\).*save the file as UTF-8/);
-    expect(r.words).toEqual([]);
+    // The unreadable line gives no word; the others are read on (their problems are listed too).
+    expect(r.words.map((w) => w.word)).toEqual(['a', 'b', 'd']);
+    expect(r.ok).toBe(false);
   });
 
   it('UTF-16 file (byte-order mark FF FE) is refused', () => {
@@ -65,7 +67,7 @@ describe('parseCorpus — accepted with a warning', () => {
     expect(r.ok).toBe(true);
     expect(r.words).toEqual([{ word: 'ana', count: 2 }, { word: 'bo', count: 3 }]);
     expect(problem(r, 'trailing-blanks')).toMatchObject({ line: 2, severity: 'warning' });
-    expect(problem(r, 'trailing-blanks')?.message).toMatch(/1 line had spaces or tabs.*lines 2\)/);
+    expect(problem(r, 'trailing-blanks')?.message).toMatch(/1 line had spaces or tabs.*\(line 2\)/);
   });
 
   it('blank lines are skipped with a note', () => {
@@ -97,6 +99,8 @@ describe('parseCorpus — errors with line numbers', () => {
     const wrong = r.problems.filter((p) => p.code === 'wrong-column-count');
     expect(wrong.map((p) => p.line)).toEqual([2, 3]);
     expect(wrong[0]?.message).toMatch(/Line 2 has 3 columns separated by tab; it needs 2 columns \(word, count\)/);
+    // Line 4 ("cy") has one column: said in the singular.
+    expect(wrong[1]?.message).toMatch(/^Line 3 has 1 column \(no tab\); it needs 2 columns/);
     const t = parse('ana\nbo\t3\n', 'a.txt');
     expect(problem(t, 'wrong-column-count')).toMatchObject({ line: 2, severity: 'error' });
     expect(problem(t, 'wrong-column-count')?.message).toMatch(/upload the file as .tsv/);
@@ -217,5 +221,26 @@ describe('parseCorpus — header detection and problem listing edge cases', () =
     expect(problem(r, 'duplicate-word')).toMatchObject({ line: 22 });
     expect(r.problems.at(-1)).toMatchObject({ code: 'more-problems', severity: 'warning' });
     expect(r.problems.at(-1)?.message).toMatch(/16 more problems are not listed/);
+  });
+});
+
+describe('parseCorpus — every problem of a file that is not clean UTF-8', () => {
+  it('lists a zero byte, a bad byte and the ordinary problems of the other lines together', () => {
+    // Line 2 holds a zero byte, line 4 a Latin-1 é (0xE9), line 5 a tab in a .txt file, line 6 is blank.
+    const bytes = new Uint8Array([...enc('ana\nb'), 0x00, ...enc('o\ncy\nd'), 0xe9, ...enc('\nel\tfy\n\nga\n')]);
+    const r = parse(bytes, 'a.txt');
+    expect(r.ok).toBe(false);
+    expect(problem(r, 'binary-file')).toMatchObject({ line: 2, severity: 'error' });
+    expect(problem(r, 'binary-file')?.message).toMatch(/zero bytes \(line 2\), so it is not a text file/);
+    expect(problem(r, 'not-utf8')).toMatchObject({ line: 4, severity: 'error' });
+    expect(problem(r, 'not-utf8')?.message).toMatch(/Line 4 has a byte \(0xE9\)/);
+    expect(problem(r, 'wrong-column-count')).toMatchObject({ line: 5, severity: 'error' });
+    expect(problem(r, 'blank-lines')?.message).toMatch(/1 blank line was skipped \(line 6\)/);
+    expect(r.lineCount).toBe(7);
+  });
+
+  it('names every line with a bad byte, not only the first', () => {
+    const r = parse(new Uint8Array([0x61, 0xe9, 0x0a, 0x62, 0x0a, 0x63, 0xff, 0x0a]), 'a.txt');
+    expect(r.problems.filter((p) => p.code === 'not-utf8').map((p) => p.line)).toEqual([1, 3]);
   });
 });

@@ -74,9 +74,10 @@ export function formatFromFileName(fileName: string): CorpusFormat | null {
   return ext === 'txt' || ext === 'tsv' || ext === 'csv' ? ext : ext === 'tab' ? 'tsv' : null;
 }
 
+/** "line 10", "lines 3, 4" or "lines 1, 2, 3, 4, 5 and 7 more". */
 function lineList(lines: number[], max = 5): string {
   const shown = lines.slice(0, max).join(', ');
-  return lines.length > max ? `${shown} and ${lines.length - max} more` : shown;
+  return `${lines.length === 1 ? 'line' : 'lines'} ${lines.length > max ? `${shown} and ${lines.length - max} more` : shown}`;
 }
 
 function emptyResult(problems: ProblemList, format: CorpusFormat | null, lineCount: number): ParsedCorpus {
@@ -118,7 +119,7 @@ function resolveDuplicates(records: RawRecord[], merge: boolean, problems: Probl
     }
   }
   if (mergedLines.length > 0) {
-    problems.warning(mergedLines[0] ?? null, 'duplicates-merged', `${plural(mergedLines.length, 'repeated word was', 'repeated words were')} merged into their first line by adding the counts (lines ${lineList(mergedLines)}).`);
+    problems.warning(mergedLines[0] ?? null, 'duplicates-merged', `${plural(mergedLines.length, 'repeated word was', 'repeated words were')} merged into their first line by adding the counts (${lineList(mergedLines)}).`);
   }
   return out;
 }
@@ -144,10 +145,12 @@ export function parseCorpus(bytes: Uint8Array, opts: ParseOptions = {}): ParsedC
   const lineCount = decoded.lines.length;
   const read = readRecords(decoded.lines, decoded.lineBytes, { format, maxLineBytes }, problems);
   if (read.trimmedLines.length > 0) {
-    problems.warning(read.trimmedLines[0] ?? null, 'trailing-blanks', `${plural(read.trimmedLines.length, 'line', 'lines')} had spaces or tabs at the start or end of a field; they were removed (lines ${lineList(read.trimmedLines)}).`);
+    problems.warning(read.trimmedLines[0] ?? null, 'trailing-blanks', `${plural(read.trimmedLines.length, 'line', 'lines')} had spaces or tabs at the start or end of a field; they were removed (${lineList(read.trimmedLines)}).`);
   }
-  if (read.blankLines.length > 0 && read.blankLines.length < lineCount) {
-    problems.warning(read.blankLines[0] ?? null, 'blank-lines', `${plural(read.blankLines.length, 'blank line was', 'blank lines were')} skipped (lines ${lineList(read.blankLines)}).`);
+  const unreadable = new Set(decoded.unreadableLines);
+  const blankLines = read.blankLines.filter((l) => !unreadable.has(l));
+  if (blankLines.length > 0 && blankLines.length < lineCount) {
+    problems.warning(blankLines[0] ?? null, 'blank-lines', `${plural(blankLines.length, 'blank line was', 'blank lines were')} skipped (${lineList(blankLines)}).`);
   }
   if (format !== 'txt' && read.columns === 1 && read.records.length > 0) {
     problems.warning(null, 'no-counts', 'The lines have no count column, so every word counts once; add a count column (word, count) if the words have frequencies.');

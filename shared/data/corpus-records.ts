@@ -160,7 +160,8 @@ export function readRecords(
       if (trimmed.length !== columns) {
         const want = columns === 2 ? '2 columns (word, count)' : '1 column (word), like the lines before it';
         const sep = delimiter === '\t' ? 'tab' : `"${delimiter}"`;
-        problems.error(line, 'wrong-column-count', `Line ${line} has ${trimmed.length} columns separated by ${sep}; it needs ${want}.`);
+        const has = trimmed.length === 1 ? `1 column (no ${sep})` : `${trimmed.length} columns separated by ${sep}`;
+        problems.error(line, 'wrong-column-count', `Line ${line} has ${has}; it needs ${want}.`);
         return;
       }
     }

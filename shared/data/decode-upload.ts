@@ -12,6 +12,8 @@ export interface DecodedLines {
   lineBytes: number[];
   crlfLines: number;
   hadBom: boolean;
+  /** Lines with a zero byte or bytes that are not UTF-8 (reported as errors); they are read as empty lines. */
+  unreadableLines: number[];
 }
 
 const NEWLINE = 0x0a;
@@ -65,17 +67,58 @@ export function utf8Length(text: string): number {
   return n;
 }
 
-function lineOfByte(bytes: Uint8Array, offset: number): number {
+/**
+ * Reports each line that holds a zero byte ('binary-file') or bytes that are not UTF-8 ('not-utf8'), and
+ * returns the text with those lines left empty, so reading can go on and list the other lines' problems.
+ */
+function readBadLines(bytes: Uint8Array, problems: ProblemList, unreadable: number[]): string {
+  const lenient = new TextDecoder('utf-8', { fatal: false, ignoreBOM: true });
+  const zeroLines: number[] = [];
+  const parts: string[] = [];
   let line = 1;
-  for (let i = 0; i < offset; i++) {
-    if (bytes[i] === NEWLINE || (bytes[i] === RETURN && bytes[i + 1] !== NEWLINE)) line++;
+  let start = 0;
+  const take = (end: number, terminator: string) => {
+    const slice = bytes.subarray(start, end);
+    if (slice.indexOf(0) >= 0) zeroLines.push(line);
+    const at = firstInvalidUtf8(slice.indexOf(0) >= 0 ? slice.filter((b) => b !== 0) : slice);
+    const bad = at >= 0 || slice.indexOf(0) >= 0;
+    if (bad) unreadable.push(line);
+    if (at >= 0) {
+      const clean = slice.filter((b) => b !== 0);
+      const byte = (clean[at] ?? 0).toString(16).toUpperCase().padStart(2, '0');
+      problems.error(
+        line,
+        'not-utf8',
+        `Line ${line} has a byte (0x${byte}) that is not valid UTF-8; save the file as UTF-8 (not Latin-1 or Windows-1252) and upload it again.`,
+      );
+    }
+    parts.push(bad ? '' : lenient.decode(slice), terminator);
+    line++;
+  };
+  for (let i = 0; i < bytes.length; i++) {
+    if (bytes[i] === NEWLINE) {
+      take(i > start && bytes[i - 1] === RETURN ? i - 1 : i, bytes[i - 1] === RETURN ? '\r\n' : '\n');
+      start = i + 1;
+    } else if (bytes[i] === RETURN && bytes[i + 1] !== NEWLINE) {
+      take(i, '\r');
+      start = i + 1;
+    }
   }
-  return line;
+  if (start < bytes.length) take(bytes.length, '');
+  if (zeroLines.length > 0) {
+    const where = zeroLines.length === 1 ? `line ${zeroLines[0]}` : `lines ${zeroLines.slice(0, 5).join(', ')}${zeroLines.length > 5 ? ` and ${zeroLines.length - 5} more` : ''}`;
+    problems.error(
+      zeroLines[0] ?? null,
+      'binary-file',
+      `The file contains zero bytes (${where}), so it is not a text file; export the word list as plain UTF-8 text (.txt, .tsv or .csv).`,
+    );
+  }
+  return parts.join('');
 }
 
 /**
- * Decodes bytes to lines. Returns null (with an error in `problems`) when the file cannot be read as
- * UTF-8 text; strips a UTF-8 byte-order mark with a warning; accepts CRLF and lone-LF line ends.
+ * Decodes bytes to lines. Returns null (with an error in `problems`) only for an empty or UTF-16 file; lines with
+ * zero bytes or bytes that are not UTF-8 are reported one by one and the rest is read on. Strips a UTF-8 byte-order mark with a warning; accepts CRLF and lone-LF line ends.
  */
 export function decodeUpload(bytes: Uint8Array, problems: ProblemList): DecodedLines | null {
   if (bytes.length === 0) {
@@ -86,28 +129,15 @@ export function decodeUpload(bytes: Uint8Array, problems: ProblemList): DecodedL
     problems.error(1, 'utf16-file', 'The file is saved as UTF-16; save it as UTF-8 text and upload it again.');
     return null;
   }
-  const nul = bytes.indexOf(0);
-  if (nul >= 0) {
-    problems.error(
-      lineOfByte(bytes, nul),
-      'binary-file',
-      'The file contains zero bytes, so it is not a text file; export the word list as plain UTF-8 text (.txt, .tsv or .csv).',
-    );
-    return null;
-  }
   let text: string;
+  const unreadableLines: number[] = [];
   try {
+    if (bytes.indexOf(0) >= 0) throw new Error('zero byte');
     text = new TextDecoder('utf-8', { fatal: true, ignoreBOM: true }).decode(bytes);
   } catch {
-    const at = Math.max(0, firstInvalidUtf8(bytes));
-    const line = lineOfByte(bytes, at);
-    const byte = (bytes[at] ?? 0).toString(16).toUpperCase().padStart(2, '0');
-    problems.error(
-      line,
-      'not-utf8',
-      `Line ${line} has a byte (0x${byte}) that is not valid UTF-8; save the file as UTF-8 (not Latin-1 or Windows-1252) and upload it again.`,
-    );
-    return null;
+    // Not clean UTF-8 text: name every line with a zero byte or a bad byte, and read on so the other problems
+    // of the file are listed too (the file cannot be saved while any error remains).
+    text = readBadLines(bytes, problems, unreadableLines);
   }
   let hadBom = false;
   if (text.charCodeAt(0) === 0xfeff) {
@@ -128,5 +158,5 @@ export function decodeUpload(bytes: Uint8Array, problems: ProblemList): DecodedL
     problems.warning(null, 'crlf', 'The file uses carriage returns (CR) as line ends; they were accepted. Nothing to fix.');
   }
   const lineBytes = lines.map(utf8Length);
-  return { lines, lineBytes, crlfLines, hadBom };
+  return { lines, lineBytes, crlfLines, hadBom, unreadableLines };
 }

@@ -110,16 +110,22 @@ async function gridStory(page: Page, problems: string[]): Promise<void> {
   await page.getByRole('checkbox', { name: `Compare ${b.run!.name}` }).check();
   const table = page.getByTestId('compare-table');
   await table.waitFor();
-  const sizeRow = table.getByRole('row', { name: /State size/ });
+  const sizeRow = table.getByRole('row', { name: /^State size/ });
   assert.match((await sizeRow.textContent()) ?? '', /differs/, 'the state size row is marked as differing');
-  const seedRow = table.getByRole('row', { name: /Seed/ });
+  const seedRow = table.getByRole('row', { name: /^Seed/ });
   assert.doesNotMatch((await seedRow.textContent()) ?? '', /differs/, 'the seed row is the same for both runs');
   await page.waitForTimeout(500);
   await screenshot(page, 'compare-01-side-by-side');
 
   // Saved as a report: a stable link, and the CSV parses back to the runs' stored figures.
   await page.getByRole('button', { name: /Save as report/ }).click();
+  // The report asks for its title first (suggested from the runs' names).
+  const titleInput = page.getByTestId('report-title-input');
+  assert.match(await titleInput.inputValue(), /^Comparison of /);
+  await titleInput.fill('Two runs side by side');
+  await page.getByRole('button', { name: 'Create report' }).click();
   await page.waitForURL(/\/reports\/[0-9a-f-]{36}$/);
+  assert.equal((await page.getByTestId('report-title').textContent())?.trim(), 'Two runs side by side');
   await page.getByTestId('report-title').waitFor();
   await page.waitForTimeout(500);
   await screenshot(page, 'compare-02-report');

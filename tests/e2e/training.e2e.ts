@@ -86,7 +86,7 @@ async function trainingStory(person: Awaited<ReturnType<TestBrowser['newPerson']
   await page.waitForTimeout(3000);
   const idleLongTasks = await page.evaluate(() => (window as unknown as { __longTasks: number[] }).__longTasks);
   await page.getByRole('link', { name: 'New run' }).click();
-  await page.getByRole('button', { name: 'Quick look' }).click();
+  await page.getByRole('button', { name: 'Short trial' }).click();
   await page.getByLabel('Run name').fill('Small syllable model');
   await page.getByRole('combobox', { name: 'Corpus' }).click();
   await page.getByRole('option', { name: /Syllable grammar/ }).click();

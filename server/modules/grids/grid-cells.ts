@@ -3,7 +3,7 @@
  * checked with the runs' settings schema of the family, and a readable label per cell.
  */
 import type { z } from 'zod';
-import { gridCoordinates, gridValueLabel, type GridAxis, type GridAxisValue } from '../../../shared/api/grids';
+import { gridCellLabel, gridCoordinates, type GridAxis, type GridAxisValue } from '../../../shared/api/grids';
 import { gruRunSettingsSchema, ngramRunSettingsSchema, ssmRunSettingsSchema, type RunFamily, type RunSettings } from '../../../shared/api/runs';
 
 const SCHEMAS: Record<RunFamily, z.ZodType> = { ssm: ssmRunSettingsSchema, gru: gruRunSettingsSchema, ngram: ngramRunSettingsSchema };
@@ -30,7 +30,7 @@ export function withValueAt(settings: Record<string, unknown>, path: string, val
 }
 
 export function cellLabel(axes: readonly GridAxis[], coords: readonly number[]): string {
-  return axes.map((a, i) => `${a.key.split('.').pop()}=${gridValueLabel(a.values[coords[i]!])}`).join(', ');
+  return gridCellLabel(axes, coords);
 }
 
 /**

@@ -62,7 +62,7 @@ describe('creating a grid', () => {
       expect(s.training.learningRate).toBe(tinyTraining.learningRate);
       expect(run.name).toContain(cell.label);
     }
-    expect(grid.cells[3]!.label).toBe('generativeFlow=shift+coupling, stateSize=16');
+    expect(grid.cells[3]!.label).toBe('Generative flow: shift + coupling, State size 16');
   });
 
   it('shows a run’s reported figure in its cell and lists the grid', async () => {
@@ -114,7 +114,7 @@ describe('refusing grids', () => {
     expect(four.body.error.fields.axes).toMatch(/at most 3 axes/);
     const bad = await api().post(gridsUrl()).set(bearer(f.tokens.member)).send(gridBody({ axes: [{ key: 'model.stateSize', values: [4, 0] }] }));
     expect(bad.status).toBe(422);
-    expect(bad.body.error.fields['baseSettings.model.stateSize']).toMatch(/cell stateSize=0/);
+    expect(bad.body.error.fields['baseSettings.model.stateSize']).toMatch(/cell State size 0/);
     expect(await countRows(t, 'runs')).toBe(before);
   });
 

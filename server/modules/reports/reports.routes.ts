@@ -14,6 +14,7 @@ import { requireRole } from '../../middleware/bench-access';
 import { parseBody, parseQuery } from '../../middleware/validate';
 import { currentBench, currentUser } from '../../request-state';
 import { ActivityRepository } from '../activity/activity.repository';
+import { reportFileStem } from './report-file-name';
 import { buildSnapshot } from './report-snapshot';
 import { Report } from './report.entity';
 
@@ -31,8 +32,7 @@ const dtoOf = (r: Report): ReportDto => ({ ...summaryOf(r), snapshot: r.snapshot
 
 /** A file name from the title: letters, digits and dashes only. */
 function fileStem(r: Report): string {
-  const stem = r.title.normalize('NFKD').replace(/[^A-Za-z0-9]+/g, '-').replace(/^-+|-+$/g, '').slice(0, 60).toLowerCase();
-  return stem || 'report';
+  return reportFileStem(r.title);
 }
 
 export function reportRoutes(ctx: AppContext): Router {

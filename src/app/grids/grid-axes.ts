@@ -2,7 +2,7 @@
  * The settings a grid can vary, with the values offered for each, and the base settings of a grid
  * (pure data, no Angular). Axis keys are paths into the run settings, as `shared/api/grids.ts` expects.
  */
-import type { GridAxisValue } from '../../../shared/api/grids';
+import { gridAxisLabel, type GridAxisValue } from '../../../shared/api/grids';
 import type { RunFamily } from '../../../shared/api/runs';
 import { PRESETS } from '../runs/run-form';
 
@@ -15,15 +15,15 @@ const stack = (...kinds: ('shift' | 'diag' | 'tril' | 'coupling')[]): AxisValueC
 const nums = (...ns: number[]): AxisValueChoice[] => ns.map((n) => ({ label: String(n), value: n }));
 
 export const AXIS_CHOICES: readonly AxisChoice[] = [
-  { key: 'model.generativeFlow', label: 'Generative flow', families: ['ssm'],
+  { key: 'model.generativeFlow', label: gridAxisLabel('model.generativeFlow'), families: ['ssm'],
     values: [stack('shift'), stack('diag'), stack('tril'), stack('coupling', 'diag'), stack('coupling', 'coupling', 'diag')] },
-  { key: 'model.inferenceFlow', label: 'Inference flow', families: ['ssm'],
+  { key: 'model.inferenceFlow', label: gridAxisLabel('model.inferenceFlow'), families: ['ssm'],
     values: [stack('shift'), stack('diag'), stack('tril'), stack('coupling', 'diag')] },
-  { key: 'model.stateSize', label: 'State size', families: ['ssm', 'gru'], values: nums(4, 8, 16, 32) },
-  { key: 'training.samples', label: 'Samples per word (K)', families: ['ssm'], values: nums(1, 2, 4, 8, 16, 32) },
-  { key: 'training.seed', label: 'Seed', families: ['ssm', 'gru'], values: nums(1, 2, 3, 4, 5, 6, 7, 8) },
-  { key: 'training.learningRate', label: 'Learning rate', families: ['ssm', 'gru'], values: nums(0.003, 0.01, 0.03) },
-  { key: 'model.order', label: 'n-gram order', families: ['ngram'], values: nums(1, 2, 3, 4, 5, 6) },
+  { key: 'model.stateSize', label: gridAxisLabel('model.stateSize'), families: ['ssm', 'gru'], values: nums(4, 8, 16, 32) },
+  { key: 'training.samples', label: gridAxisLabel('training.samples'), families: ['ssm'], values: nums(1, 2, 4, 8, 16, 32) },
+  { key: 'training.seed', label: gridAxisLabel('training.seed'), families: ['ssm', 'gru'], values: nums(1, 2, 3, 4, 5, 6, 7, 8) },
+  { key: 'training.learningRate', label: gridAxisLabel('training.learningRate'), families: ['ssm', 'gru'], values: nums(0.003, 0.01, 0.03) },
+  { key: 'model.order', label: gridAxisLabel('model.order'), families: ['ngram'], values: nums(1, 2, 3, 4, 5, 6) },
 ];
 
 export function axisChoice(key: string): AxisChoice | undefined {
@@ -36,9 +36,9 @@ export function axisChoicesFor(family: RunFamily): AxisChoice[] {
 
 export interface GridBudget { steps: number; batchSize: number; learningRate: number; evalEvery: number; checkpointEvery: number }
 
-/** Base run settings of a grid's family from the "quick look" preset and the chosen budget. */
+/** Base run settings of a grid's family from the "short trial" preset and the chosen budget. */
 export function baseSettingsOf(family: RunFamily, budget: GridBudget): Record<string, unknown> {
-  const p = PRESETS.quick;
+  const p = PRESETS.short;
   const training = {
     steps: budget.steps, batchSize: budget.batchSize, samples: p.model.samples, learningRate: budget.learningRate,
     clipNorm: p.training.clipNorm, warmupSteps: 0, regime: 'token', seed: 1,

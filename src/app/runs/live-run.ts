@@ -27,7 +27,11 @@ export class LiveRun {
   readonly engine = signal<EngineInfo | null>(null);
   /** A sentence for people when the run failed or could not start. */
   readonly problem = signal<string | null>(null);
+  /** A plain remark that is no failure (e.g. a pause that came after the last step). */
+  readonly notice = signal<string | null>(null);
   readonly samples = signal<string[]>([]);
+  /** The latest validation figures of this session (they come with some progress messages only). */
+  readonly lastValidation = signal<{ step: number; bitsPerChar: number; bitsPerWord: number; exact: boolean } | null>(null);
   /** Step of the last checkpoint saved to the server in this session. */
   readonly lastSavedStep = signal<number | null>(null);
   readonly points = new Subject<CurvePoint[]>();

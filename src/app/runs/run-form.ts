@@ -64,13 +64,13 @@ export type RunFormValue = ReturnType<RunForm['getRawValue']>;
 
 export const PRESETS = {
   /** Small and fast: a first look at whether the corpus is learnable at all (common practice, no source). */
-  quick: {
+  short: {
     model: { stateSize: 8, generativeFlow: ['coupling', 'diag'] as FlowKind[], inferenceFlow: ['diag'] as FlowKind[], flowHidden: 16,
       encoderSize: 32, embeddingSize: 8, proposalHidden: 16, observationHidden: 0, samples: 4 },
     training: { batchSize: 32, steps: 300, learningRate: 0.01, clipNorm: 5, warmupSteps: 0, evalEvery: 50, checkpointEvery: 100 },
   },
   /** Larger K, wider networks and a warm-up: tighter bounds for a result worth reporting (common practice, no source). */
-  careful: {
+  thorough: {
     model: { stateSize: 16, generativeFlow: ['coupling', 'coupling', 'diag'] as FlowKind[], inferenceFlow: ['tril'] as FlowKind[],
       flowHidden: 64, encoderSize: 64, embeddingSize: 16, proposalHidden: 64, observationHidden: 0, samples: 16 },
     training: { batchSize: 64, steps: 5000, learningRate: 0.003, clipNorm: 5, warmupSteps: 500, evalEvery: 250, checkpointEvery: 500 },

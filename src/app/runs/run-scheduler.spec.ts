@@ -4,7 +4,8 @@ import type { RunDto } from '../../../shared/api/runs';
 import { AuthStore } from '../core/auth-store';
 import type { TrainerHandle } from '../workers/trainer-client';
 import { TRAINER_FACTORY } from '../workers/trainer-client';
-import type { CheckpointUploadTarget, TrainingOutcome } from '../workers/trainer-api';
+import { ApiError } from '../core/api-error';
+import type { CheckpointUploadTarget, TrainingOutcome, TrainingProgress } from '../workers/trainer-api';
 import { RunScheduler } from './run-scheduler';
 import { RunsApi } from './runs-api';
 
@@ -14,27 +15,37 @@ const RUN = {
   summary: {}, stepsDone: 0, archived: false, checkpointCount: 0, canControl: true, placement: 'tab', runner: null, live: null, createdAt: '2026-12-01T00:00:00Z', updatedAt: '2026-12-01T00:00:00Z',
 } as unknown as RunDto;
 
+const progressAt = (step: number, totalSteps: number) =>
+  ({ step, totalSteps, trainBitsPerChar: 3, isBound: true, wordsPerSecond: 100, etaSeconds: 5 }) as unknown as TrainingProgress;
+
 /** A fake worker: training runs until `stop`; checkpoints are "uploaded" by recording the target. */
 function fakeWorker() {
   let end: (o: TrainingOutcome) => void = () => {};
+  let onProgress: (p: TrainingProgress) => void = () => {};
+  let savedStep = 7;
   const uploads: CheckpointUploadTarget[] = [];
   let failNext: string | null = null;
   const handle = {
     api: {
       init: vi.fn(async () => ({ backend: 'wasm', simd: true, threads: 1, parameterCount: 10, step: 0 })),
-      start: vi.fn(() => new Promise<TrainingOutcome>((resolve) => { end = resolve; })),
+      start: vi.fn((cb: (p: TrainingProgress) => void) => new Promise<TrainingOutcome>((resolve) => { end = resolve; onProgress = cb; })),
       pause: vi.fn(async () => undefined),
       resume: vi.fn(async () => undefined),
       stop: vi.fn(async () => end({ kind: 'stopped', step: 7 })),
       uploadCheckpoint: vi.fn(async (target: CheckpointUploadTarget) => {
         if (failNext) { const e = new Error(failNext); e.name = 'UPLOAD_FAILED'; failNext = null; throw e; }
         uploads.push(target);
-        return { id: `ck-${uploads.length}`, step: 7 };
+        return { id: `ck-${uploads.length}`, step: savedStep };
       }),
     },
     close: vi.fn(),
   } as unknown as TrainerHandle;
-  return { handle, uploads, failWith: (m: string) => { failNext = m; } };
+  return {
+    handle, uploads, failWith: (m: string) => { failNext = m; },
+    /** Reports progress at `step` of `total`, as the worker's loop does. */
+    progress: (step: number, total: number) => { savedStep = step; onProgress(progressAt(step, total)); },
+    complete: (step: number) => { savedStep = step; end({ kind: 'completed', step }); },
+  };
 }
 
 function setUp() {
@@ -42,7 +53,7 @@ function setUp() {
   const signOutHooks: (() => Promise<void>)[] = [];
   const auth = { token: signal<string | null>('token-1'), beforeSignOut: (hook: () => Promise<void>) => { signOutHooks.push(hook); return () => undefined; } };
   const api = {
-    update: vi.fn(async () => RUN),
+    update: vi.fn(async (..._args: unknown[]) => RUN),
     trainingSet: vi.fn(async () => ({ alphabet: ['a', 'b'], words: ['ab', 'ba'], counts: [2, 1], splits: ['train', 'validation'] })),
     truncateMetrics: vi.fn(async () => undefined),
     addMetrics: vi.fn(async () => undefined),
@@ -56,7 +67,7 @@ function setUp() {
       { provide: TRAINER_FACTORY, useValue: () => worker.handle },
     ],
   });
-  return { scheduler: TestBed.inject(RunScheduler), worker, auth, signOutHooks };
+  return { scheduler: TestBed.inject(RunScheduler), worker, auth, signOutHooks, api };
 }
 
 const until = async (check: () => boolean) => {
@@ -74,8 +85,8 @@ describe('RunScheduler checkpoints', () => {
     expect(live.lastSavedStep()).toBe(7);
     await scheduler.stop('run-1');
     await until(() => live.state() === 'stopped');
-    // Stopping saves once more, with reason "stop".
-    expect(worker.uploads.at(-1)?.url).toMatch(/reason=stop$/);
+    // Stopping at the step just saved keeps that one checkpoint instead of storing an identical second one.
+    expect(worker.uploads.map((u) => u.url)).toEqual([expect.stringMatching(/reason=manual$/)]);
   });
 
   it('passes the worker’s sentence on when a save fails', async () => {
@@ -156,3 +167,83 @@ describe('RunScheduler and the end of a session', () => {
     expect(worker.handle.api.stop).toHaveBeenCalled();
   });
 });
+
+describe('RunScheduler at the end of a run', () => {
+  const statuses = (api: { update: ReturnType<typeof vi.fn> }) =>
+    api.update.mock.calls.map((c) => (c[2] as { status?: string }).status).filter((x) => x !== undefined);
+
+  it('does not pause a run at its last step: it finishes, with a notice and no "paused" sent', async () => {
+    const { scheduler, worker, api } = setUp();
+    const live = await scheduler.enqueue('b1', RUN);
+    await until(() => live.state() === 'training');
+    worker.progress(300, 300);
+    await scheduler.pause('run-1');
+    expect(worker.handle.api.pause).not.toHaveBeenCalled();
+    expect(live.notice()).toMatch(/last step/);
+    worker.complete(300);
+    await until(() => live.state() === 'finished');
+    expect(statuses(api)).not.toContain('paused');
+    expect(statuses(api).at(-1)).toBe('finished');
+  });
+
+  it('undoes a pause that the worker took just before its loop returned, so the server ends finished', async () => {
+    const { scheduler, worker, api } = setUp();
+    const live = await scheduler.enqueue('b1', RUN);
+    await until(() => live.state() === 'training');
+    worker.progress(299, 300);
+    await scheduler.pause('run-1'); // accepted: the run is at step 299
+    expect(live.state()).toBe('paused');
+    worker.complete(300); // the loop had one more step in hand and returned
+    await until(() => live.state() === 'finished');
+    const sent = statuses(api);
+    expect(sent.slice(-3)).toEqual(['paused', 'training', 'finished']);
+    expect(live.notice()).toMatch(/nothing to pause/);
+  });
+
+  it('shows a notice, not a failure, when the server says the run already finished', async () => {
+    const { scheduler, worker, api } = setUp();
+    const live = await scheduler.enqueue('b1', RUN);
+    await until(() => live.state() === 'training');
+    worker.progress(10, 300);
+    api.update.mockImplementationOnce(async () => { throw new ApiError(409, 'RUN_STATUS_CONFLICT', 'A run that is finished cannot become paused.', {}); });
+    await scheduler.pause('run-1');
+    expect(live.notice()).toMatch(/already reached its last step/);
+    expect(live.problem()).toBeNull();
+    await scheduler.stop('run-1');
+  });
+
+  it('saves one final checkpoint when the last step is also an autosave step', async () => {
+    const { scheduler, worker } = setUp();
+    const live = await scheduler.enqueue('b1', { ...RUN, settings: { ...RUN.settings, training: { checkpointEvery: 100 } } } as RunDto);
+    await until(() => live.state() === 'training');
+    worker.progress(100, 200);
+    await until(() => worker.uploads.length === 1);
+    worker.progress(200, 200);
+    worker.complete(200);
+    await until(() => live.state() === 'finished');
+    expect(worker.uploads.map((u) => new URL(u.url).searchParams.get('reason'))).toEqual(['auto', 'stop']);
+  });
+
+  it('keeps the last samples in the run summary, so a reload can show them', async () => {
+    const { scheduler, worker, api } = setUp();
+    const live = await scheduler.enqueue('b1', RUN);
+    await until(() => live.state() === 'training');
+    live.samples.set(['ab', 'ba']);
+    worker.progress(5, 10);
+    worker.complete(10);
+    await until(() => live.state() === 'finished');
+    const summaries = api.update.mock.calls.map((c) => (c[2] as { summary?: { lastSamples?: string[] } }).summary?.lastSamples).filter(Boolean);
+    expect(summaries.at(-1)).toEqual(['ab', 'ba']);
+  });
+
+  it('keeps the latest validation figures in bits/char and bits/word for the page', async () => {
+    const { scheduler, worker } = setUp();
+    const live = await scheduler.enqueue('b1', RUN);
+    await until(() => live.state() === 'training');
+    const p = { ...progressAt(40, 80), evaluation: { step: 40, validationBitsPerChar: 2.5, validationBitsPerWord: 15, observationEntropyBits: null, noiseInformationBits: null, samples: [] } };
+    (worker.handle.api.start as unknown as { mock: { calls: [(x: TrainingProgress) => void][] } }).mock.calls[0]![0](p as TrainingProgress);
+    expect(live.lastValidation()).toEqual({ step: 40, bitsPerChar: 2.5, bitsPerWord: 15, exact: true }); // an n-gram run: exact
+    await scheduler.stop('run-1');
+  });
+});
+

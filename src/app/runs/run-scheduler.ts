@@ -1,6 +1,7 @@
 import { DestroyRef, Injectable, OnDestroy, computed, effect, inject, signal, untracked } from '@angular/core';
 import { proxy } from 'comlink';
-import type { RunDto } from '../../../shared/api/runs';
+import { ErrorCode } from '../../../shared/api/errors';
+import type { RunDto, RunStatus } from '../../../shared/api/runs';
 import { ApiError, messageOf } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { TRAINER_FACTORY, fromBoundaryError, type TrainerHandle } from '../workers/trainer-client';
@@ -21,10 +22,29 @@ function problemOf(error: unknown): string {
 
 const lockName = (runId: string) => `noisewright-run:${runId}`;
 
+/** Fresh samples kept in the run's summary, so a reloaded page still shows the last ones. */
+const LAST_SAMPLES_KEPT = 12;
+
+/** The last progress reached the run's final step (the worker's loop returns right after it). */
+function atLastStep(slot: Slot): boolean {
+  const p = slot.live.progress();
+  return !!p && p.totalSteps > 0 && p.step >= p.totalSteps;
+}
+
 interface Slot {
   live: LiveRun; handle: TrainerHandle | null; buffer: CurvePoint[]; lastFlush: number; saving: boolean; nextSave: number;
   best: { bits: number; step: number } | null;
+  /** The worker's training loop has returned: no pause or resume reaches it any more. */
+  ending: boolean;
+  /** The save under way (autosave or by hand), so the final save waits for it instead of racing it. */
+  saveWork: Promise<void> | null;
+  /** The status update under way (pause / resume), so the end of training is sent after it. */
+  statusWork: Promise<void> | null;
+  /** The status this tab last had the server accept. */
+  sentStatus: RunStatus | null;
 }
+
+const AT_END_NOTICE = 'This run had already reached its last step and finishes now: there was nothing to pause.';
 
 /**
  * Trains runs in this tab, one dedicated worker each, at most `limit` at once (hardware threads minus one, at
@@ -72,7 +92,10 @@ export class RunScheduler implements OnDestroy {
     if (existing && (existing.live.isActive || existing.live.state() === 'waiting')) return existing.live;
     const live = new LiveRun(benchId, run, fromCheckpointId);
     this.slots.delete(run.id);
-    this.slots.set(run.id, { live, handle: null, buffer: [], lastFlush: performance.now(), saving: false, nextSave: 0, best: null });
+    this.slots.set(run.id, {
+      live, handle: null, buffer: [], lastFlush: performance.now(), saving: false, nextSave: 0, best: null,
+      ending: false, saveWork: null, statusWork: null, sentStatus: null,
+    });
     this.version.update((v) => v + 1);
     if (await this.heldElsewhere(run.id)) {
       this.markElsewhere(live);
@@ -83,20 +106,46 @@ export class RunScheduler implements OnDestroy {
     return live;
   }
 
+  /**
+   * Pauses a run that trains in this tab. A run at its last step (or whose training loop has already returned)
+   * is not paused: it finishes, and `notice` says so. A server that answers that the run already finished gets
+   * the same notice, and the run is not marked paused.
+   */
   async pause(runId: string): Promise<void> {
     const slot = this.slots.get(runId);
     if (!slot?.handle || slot.live.state() !== 'training') return;
+    if (slot.ending || atLastStep(slot)) {
+      slot.live.notice.set(AT_END_NOTICE);
+      return;
+    }
     await slot.handle.api.pause();
+    if (slot.ending || !slot.handle) {
+      slot.live.notice.set(AT_END_NOTICE);
+      return;
+    }
     slot.live.state.set('paused');
-    await this.flush(slot, { status: 'paused' });
+    slot.live.notice.set(null);
+    await this.sendStatus(slot, 'paused');
   }
 
   async resume(runId: string): Promise<void> {
     const slot = this.slots.get(runId);
     if (!slot?.handle || slot.live.state() !== 'paused') return;
     await slot.handle.api.resume();
-    slot.live.state.set('training');
-    await this.flush(slot, { status: 'training' });
+    if (slot.live.state() === 'paused') slot.live.state.set('training');
+    await this.sendStatus(slot, 'training');
+  }
+
+  /** Sends a pause or resume after any status update still under way; `finish` waits for it in turn. */
+  private async sendStatus(slot: Slot, status: 'training' | 'paused'): Promise<void> {
+    const before = slot.statusWork;
+    const work = (async () => {
+      await before;
+      if (slot.ending && status === 'paused') return;
+      await this.flush(slot, { status });
+    })();
+    slot.statusWork = work;
+    await work;
   }
 
   /**
@@ -111,8 +160,10 @@ export class RunScheduler implements OnDestroy {
     }
     if (slot.saving) throw new Error('A checkpoint of this run is being saved already; wait a moment.');
     slot.saving = true;
+    const work = this.saveCheckpoint(slot, 'manual');
+    slot.saveWork = work.catch(() => undefined);
     try {
-      await this.saveCheckpoint(slot, 'manual');
+      await work;
       return slot.live.lastSavedStep() ?? 0;
     } catch (error) {
       throw new Error(problemOf(error));
@@ -209,7 +260,9 @@ export class RunScheduler implements OnDestroy {
         status: 'training', statusReason: null, stepsDone: info.step,
         summary: { backend: info.backend, simd: info.simd, threads: info.threads, parameterCount: info.parameterCount },
       });
+      slot.sentStatus = 'training';
       const outcome = await slot.handle.api.start(proxy((p: TrainingProgress) => this.onProgress(slot, p)));
+      slot.ending = true;
       await this.finish(slot, outcome);
     } catch (error) {
       const problem = problemOf(error);
@@ -226,13 +279,17 @@ export class RunScheduler implements OnDestroy {
     live.progress.set(p);
     if (p.evaluation && p.evaluation.samples.length > 0) live.samples.update((old) => [...p.evaluation!.samples, ...old].slice(0, 30));
     const e = p.evaluation;
+    if (e && Number.isFinite(e.validationBitsPerChar)) {
+      live.lastValidation.set({ step: e.step, bitsPerChar: e.validationBitsPerChar, bitsPerWord: e.validationBitsPerWord, exact: live.run.family !== 'ssm' });
+    }
     if (e && Number.isFinite(e.validationBitsPerChar) && (!slot.best || e.validationBitsPerChar < slot.best.bits)) {
       slot.best = { bits: e.validationBitsPerChar, step: e.step };
     }
     const points = LiveRun.pointsOf(p);
     live.points.next(points);
     slot.buffer.push(...points);
-    if (p.step >= slot.nextSave && !slot.saving) void this.autosave(slot, p.step);
+    // The last step gets the final save ("on stop") only, not an identical autosave beside it.
+    if (p.step >= slot.nextSave && p.step < p.totalSteps && !slot.saving && !slot.ending) void this.autosave(slot, p.step);
     if (slot.buffer.length >= FLUSH_AT_POINTS || performance.now() - slot.lastFlush >= FLUSH_EVERY_MS) void this.flush(slot);
   }
 
@@ -240,8 +297,10 @@ export class RunScheduler implements OnDestroy {
     const every = slot.live.run.settings.training?.checkpointEvery ?? 0;
     slot.saving = true;
     slot.nextSave = (Math.floor(step / every) + 1) * every;
+    const work = this.saveCheckpoint(slot, 'auto');
+    slot.saveWork = work.catch(() => undefined);
     try {
-      await this.saveCheckpoint(slot, 'auto');
+      await work;
     } catch (error) {
       slot.live.problem.set(`Autosave failed: ${problemOf(error)}`);
     } finally {
@@ -268,18 +327,30 @@ export class RunScheduler implements OnDestroy {
     const p = live.progress();
     try {
       if (points.length > 0) await this.api.addMetrics(live.benchId, live.id, { points });
+      let answer: RunDto | undefined;
       if (p) {
-        await this.api.update(live.benchId, live.id, {
+        answer = await this.api.update(live.benchId, live.id, {
           ...extra, stepsDone: p.step,
           summary: {
             lastBoundBitsPerChar: p.trainBitsPerChar, lastIsBound: p.isBound, wordsPerSecond: Math.max(0, p.wordsPerSecond),
             ...(slot.best ? { bestValidationBitsPerChar: slot.best.bits, bestValidationStep: slot.best.step } : {}),
+            ...(live.samples().length > 0 ? { lastSamples: live.samples().slice(0, LAST_SAMPLES_KEPT).map((w) => w.slice(0, 64)) } : {}),
           },
         });
       } else if (extra.status) {
-        await this.api.update(live.benchId, live.id, extra);
+        answer = await this.api.update(live.benchId, live.id, extra);
+      }
+      if (extra.status && answer?.status === 'finished') {
+        // The server kept the run finished and ignored the late pause.
+        live.notice.set(AT_END_NOTICE);
+      } else if (extra.status) {
+        slot.sentStatus = extra.status;
       }
     } catch (error) {
+      if (extra.status === 'paused' && error instanceof ApiError && error.code === ErrorCode.RunStatusConflict) {
+        live.notice.set(AT_END_NOTICE);
+        return;
+      }
       live.problem.set(`Could not save progress to the server: ${messageOf(error)}`);
     }
   }
@@ -289,12 +360,26 @@ export class RunScheduler implements OnDestroy {
     // Progress messages are throttled: show the step training really ended at.
     const last = live.progress();
     if (last && last.step !== outcome.step) live.progress.set({ ...last, step: outcome.step, evaluation: undefined });
-    try {
-      await this.saveCheckpoint(slot, 'stop');
-    } catch (error) {
-      live.problem.set(`The final checkpoint could not be saved: ${problemOf(error)}`);
+    // One final checkpoint: wait for a save under way, and save again only when it was not of this very step.
+    await slot.saveWork;
+    if (live.lastSavedStep() !== outcome.step) {
+      try {
+        await this.saveCheckpoint(slot, 'stop');
+      } catch (error) {
+        live.problem.set(`The final checkpoint could not be saved: ${problemOf(error)}`);
+      }
+    }
+    // A pause sent in the last moments must reach the server before the end does, and be undone by it.
+    await slot.statusWork;
+    if (live.state() === 'paused') {
+      live.state.set('training');
+      live.notice.set(AT_END_NOTICE);
     }
     await this.flush(slot);
+    if (slot.sentStatus === 'paused') {
+      await this.api.update(live.benchId, live.id, { status: 'training' }).catch(() => undefined);
+      slot.sentStatus = 'training';
+    }
     if (outcome.kind === 'failed') {
       live.problem.set(outcome.error.message);
       live.state.set('failed');

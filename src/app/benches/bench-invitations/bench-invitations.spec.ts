@@ -80,6 +80,9 @@ describe('BenchInvitations', () => {
       expect(cells['email'].text).toEqual(['sam@example.org']);
       expect(cells['role'].text).toEqual(['Viewer']);
     });
+    // The role field keeps the chosen role for the next invitation; only the address is cleared.
+    expect(await select.getValueText()).toBe('Viewer');
+    expect(await (await loader.getHarness(MatInputHarness)).getValue()).toBe('');
   });
 
   it('shows the server refusal on the e-mail field and a sentence above the form', async () => {

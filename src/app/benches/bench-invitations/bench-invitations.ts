@@ -100,7 +100,8 @@ export class BenchInvitations {
     try {
       await this.api.invite(this.bench().id, email, role);
       this.notice.done(`Invitation sent to ${email}.`);
-      this.formDirective()?.resetForm({ email: '', role: 'member' });
+      // The next invitation is often for the same role: keep it, clear only the address.
+      this.formDirective()?.resetForm({ email: '', role });
       await this.load();
     } catch (error) {
       this.problem.set(formProblem(error, this.form, 'No invitation was sent.'));

@@ -1,5 +1,5 @@
 import { DatePipe } from '@angular/common';
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
@@ -12,7 +12,13 @@ import { BenchSummary } from '../../core/api-types';
 import { Notice } from '../../core/notice';
 import { ConfirmDialog, ConfirmDialogData } from '../../ui/confirm-dialog/confirm-dialog';
 import { controlMessage, notBlank, formProblem } from '../../ui/form-messages';
+import { CorporaApi } from '../../corpora/corpora-api';
+import { GridsApi } from '../../grids/grids-api';
+import { ReportsApi } from '../../reports/reports-api';
+import { RunsApi } from '../../runs/runs-api';
 import { BenchesApi } from '../benches-api';
+
+export interface BenchCounts { corpora: number; runs: number; grids: number; reports: number }
 import { CurrentBench } from '../current-bench';
 
 /** Name, description and the owner's rename / delete controls. */
@@ -34,6 +40,12 @@ export class BenchOverview {
   private readonly dialog = inject(MatDialog);
   private readonly router = inject(Router);
   private readonly notice = inject(Notice);
+  private readonly corpora = inject(CorporaApi);
+  private readonly runs = inject(RunsApi);
+  private readonly grids = inject(GridsApi);
+  private readonly reports = inject(ReportsApi);
+  /** How much the bench holds (null while loading or when a count could not be read). */
+  protected readonly counts = signal<BenchCounts | null>(null);
   protected readonly isOwner = computed(() => this.bench().role === 'owner');
   protected readonly busy = signal(false);
   protected readonly problem = signal<string | null>(null);
@@ -48,6 +60,21 @@ export class BenchOverview {
       const { name, description } = this.bench();
       this.form.reset({ name, description });
     });
+    effect(() => {
+      const id = this.bench().id;
+      untracked(() => void this.loadCounts(id));
+    });
+  }
+
+  private async loadCounts(benchId: string): Promise<void> {
+    try {
+      const [corpora, runs, grids, reports] = await Promise.all([
+        this.corpora.list(benchId), this.runs.list(benchId, { limit: 1 }), this.grids.list(benchId), this.reports.list(benchId, { limit: 1, offset: 0 }),
+      ]);
+      if (this.bench().id === benchId) this.counts.set({ corpora: corpora.length, runs: runs.total, grids: grids.length, reports: reports.total });
+    } catch {
+      this.counts.set(null); // the shortcuts still work; each page says what went wrong
+    }
   }
 
   protected async save(): Promise<void> {

@@ -1,6 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCheckboxModule } from '@angular/material/checkbox';
+import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatSelectModule } from '@angular/material/select';
@@ -13,6 +14,7 @@ import { CurrentBench } from '../../benches/current-bench';
 import { messageOf } from '../../core/api-error';
 import { FAMILY_SHORT, STATUS_LABELS } from '../../runs/run-labels';
 import { RunsApi } from '../../runs/runs-api';
+import { askReportTitle } from '../../ui/report-title-dialog/report-title-dialog';
 import { CompareCurves, type RunCurve } from '../compare-curves/compare-curves';
 import { compareRows, type EvaluationFigures } from '../compare-rows';
 import { CompareTable } from '../compare-table/compare-table';
@@ -44,6 +46,7 @@ export class CompareHome {
   private readonly reports = inject(ReportsApi);
   private readonly router = inject(Router);
   private readonly route = inject(ActivatedRoute);
+  private readonly dialog = inject(MatDialog);
   protected readonly bench = inject(CurrentBench);
   protected readonly curveChoices = CURVE_CHOICES;
   protected readonly pickColumns = ['pick', 'name', 'family', 'corpus', 'status', 'bestBound'];
@@ -124,12 +127,12 @@ export class CompareHome {
   }
 
   protected async saveReport(): Promise<void> {
+    const runs = this.chosen();
+    const title = await askReportTitle(this.dialog, `Comparison of ${runs.map((r) => r.name).join(', ')}`.slice(0, 160));
+    if (title === null) return;
     this.saving.set(true);
     try {
-      const runs = this.chosen();
-      const report = await this.reports.create(this.benchId(), {
-        kind: 'comparison', title: `Comparison of ${runs.map((r) => r.name).join(', ')}`.slice(0, 160), sourceIds: runs.map((r) => r.id),
-      });
+      const report = await this.reports.create(this.benchId(), { kind: 'comparison', title, sourceIds: runs.map((r) => r.id) });
       await this.router.navigate(['/benches', this.benchId(), 'reports', report.id]);
     } catch (error) {
       this.problem.set(`The report could not be saved: ${messageOf(error)}`);

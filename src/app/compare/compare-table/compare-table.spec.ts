@@ -69,4 +69,21 @@ describe('CompareTable', { timeout: 30_000 }, () => {
     expect(rows.get('Best validation bound')!['run1']).toBe('—');
     expect(rows.get('Best validation bound')!['label']).toMatch(/differs$/);
   });
+
+  it('aligns text and numbers of a run column alike, and says the end of word is counted in bits/char', async () => {
+    TestBed.configureTestingModule({ imports: [CompareTable], providers: [provideZonelessChangeDetection()] });
+    const runs = [ssmRun('r1', 'a', 8, 'diag', 1), ssmRun('r2', 'b', 16, 'tril', 2)];
+    const fixture = TestBed.createComponent(CompareTable);
+    fixture.componentRef.setInput('runs', runs);
+    fixture.componentRef.setInput('rows', compareRows(runs));
+    await fixture.whenStable();
+    const el = fixture.nativeElement as HTMLElement;
+    const runCells = [...el.querySelectorAll('td.mat-column-run0, td.mat-column-run1')];
+    expect(runCells.length).toBeGreaterThan(10);
+    expect(runCells.every((td) => td.classList.contains('run-cell'))).toBe(true);
+    // Text values (flows) and numbers (state size) both in run cells: one alignment rule for the column.
+    expect(runCells.some((td) => !td.classList.contains('nw-num'))).toBe(true);
+    expect(el.textContent).toContain('bits/char, end-of-word counted');
+  });
 });
+

@@ -17,14 +17,14 @@ import { formatValue, type CompareRow } from '../compare-rows';
         <ng-container matColumnDef="label">
           <th mat-header-cell *matHeaderCellDef>Setting or figure</th>
           <td mat-cell *matCellDef="let row" [class.figure]="row.group === 'figure'">
-            {{ row.label }}@if (row.unit) {<span class="nw-unit">({{ row.unit }})</span>}
+            {{ row.label }}@if (row.unit) {<span class="nw-unit">({{ row.unit === 'bits/char' ? 'bits/char, end-of-word counted' : row.unit }})</span>}
             @if (row.differs) { <span class="differs-mark">differs</span> }
           </td>
         </ng-container>
         @for (run of runs(); track run.id; let i = $index) {
           <ng-container [matColumnDef]="'run' + i">
             <th mat-header-cell *matHeaderCellDef class="nw-num run-head">{{ run.name }}</th>
-            <td mat-cell *matCellDef="let row" [class.nw-num]="isNumber(row.values[i])">{{ show(row, row.values[i]) }}</td>
+            <td mat-cell *matCellDef="let row" class="run-cell" [class.nw-num]="isNumber(row.values[i])">{{ show(row, row.values[i]) }}</td>
           </ng-container>
         }
         <tr mat-header-row *matHeaderRowDef="columns()"></tr>
@@ -39,6 +39,8 @@ import { formatValue, type CompareRow } from '../compare-rows';
     .differs-mark { margin-left: 8px; font-size: 0.75em; text-transform: uppercase; letter-spacing: 0.04em; color: #6a4500; }
     td.figure { font-weight: 500; }
     .run-head { max-width: 14em; overflow: hidden; text-overflow: ellipsis; }
+    /* One alignment per column: words and numbers of a run both sit on the right edge. */
+    .run-cell { text-align: right; }
     @media print { tr.differs td { background: #eee; } }
   `,
 })

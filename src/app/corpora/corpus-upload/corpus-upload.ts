@@ -76,6 +76,8 @@ export class CorpusUpload {
     description: ['', [Validators.maxLength(500)]],
   });
 
+  /** The name last taken from a file name (replaced when another file is chosen, unless the person edited it). */
+  private suggestedName = '';
   private readonly previewRequests = new Subject<{ file: File; options: CorpusOptionsInput }>();
 
   constructor() {
@@ -121,6 +123,7 @@ export class CorpusUpload {
   protected onDrop(event: DragEvent): void {
     event.preventDefault();
     this.dragging.set(false);
+    if (!this.canUpload()) return;
     const files = event.dataTransfer?.files;
     if (!files || files.length === 0) return;
     if (files.length > 1) {
@@ -140,9 +143,12 @@ export class CorpusUpload {
     } else {
       this.fileProblem.set(null);
       this.file.set(file);
-      if (!this.details.controls.name.value) {
+      // The name follows the latest file until the person types one of their own.
+      const name = this.details.controls.name;
+      if (!name.value || name.value === this.suggestedName) {
         const base = file.name.replace(/\.[^.]+$/, '').replace(/[-_]+/g, ' ').trim();
-        this.details.controls.name.setValue(base.charAt(0).toUpperCase() + base.slice(1));
+        this.suggestedName = base.charAt(0).toUpperCase() + base.slice(1);
+        name.setValue(this.suggestedName);
       }
       this.requestPreview();
       return;
@@ -155,6 +161,11 @@ export class CorpusUpload {
     const file = this.file();
     const options = this.options();
     if (!file) return;
+    if (!this.canUpload()) {
+      // The server refuses viewers; say so here instead of sending the file.
+      this.state.set({ kind: 'failed', message: 'Viewers cannot upload or check corpora on this bench; the file was not sent.' });
+      return;
+    }
     if (!options) {
       this.state.set({ kind: 'failed', message: 'Correct the options marked in red to see the preview.' });
       return;

@@ -42,8 +42,9 @@ function dto(settings: EvaluationSummaryDto['settings'], id: string): Evaluation
   };
 }
 
-async function setUp(stored: EvaluationDto[] = []) {
-  const evaluate = vi.fn(async (input: EvaluationJobInput) => results(input.ngramOrder));
+async function setUp(stored: EvaluationDto[] = [], hang = false) {
+  const evaluate = vi.fn(async (input: EvaluationJobInput) =>
+    hang ? new Promise<EvaluationJobResult>(() => undefined) : results(input.ngramOrder));
   const close = vi.fn();
   const saved: EvaluationDto[] = [...stored];
   const create = vi.fn(async (_b: string, _r: string, _c: string, body: CreateEvaluationRequest) => {
@@ -84,7 +85,7 @@ async function setUp(stored: EvaluationDto[] = []) {
   // The page loads the run, its checkpoints and the stored evaluations before it shows the form.
   await vi.waitFor(() => expect((fixture.nativeElement as HTMLElement).querySelector('nw-evaluation-settings')).not.toBeNull());
   await fixture.whenStable();
-  return { fixture, loader, evaluate, create };
+  return { fixture, loader, evaluate, create, close };
 }
 
 type Setup = Awaited<ReturnType<typeof setUp>>;
@@ -135,5 +136,20 @@ describe('Evaluation page settings → worker', { timeout: 30_000 }, () => {
     await choose(loader, null, '4');
     await vi.waitFor(() => expect(create).toHaveBeenCalledTimes(1));
     expect(evaluate.mock.calls[0]![0]).toMatchObject({ heldOutSplit: 'test', ngramOrder: 4 });
+  });
+});
+
+describe('Evaluation page cancel', { timeout: 30_000 }, () => {
+  it('ends a running evaluation: the worker is terminated, nothing is stored and the page says so', async () => {
+    const { fixture, loader, evaluate, create, close } = await setUp([], true);
+    await choose(loader, null, null);
+    await vi.waitFor(() => expect(evaluate).toHaveBeenCalledTimes(1));
+    await fixture.whenStable();
+    await (await loader.getHarness(MatButtonHarness.with({ text: /Cancel/ }))).click();
+    await vi.waitFor(() => expect(text(fixture, 'evaluation-notice')).toMatch(/cancelled; nothing was stored/));
+    expect(close).toHaveBeenCalled();
+    expect(create).not.toHaveBeenCalled();
+    expect(text(fixture, 'evaluation-progress')).toBe('');
+    expect(await loader.getAllHarnesses(MatButtonHarness.with({ text: /Cancel/ }))).toHaveLength(0);
   });
 });

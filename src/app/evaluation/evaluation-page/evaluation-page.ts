@@ -2,6 +2,7 @@ import { DatePipe, DecimalPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { HttpClient } from '@angular/common/http';
 import { MatButtonModule } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { Router, RouterLink } from '@angular/router';
@@ -15,13 +16,14 @@ import { ApiError } from '../../core/api-error';
 import { CurrentBench } from '../../benches/current-bench';
 import { FAMILY_LABELS } from '../../runs/run-labels';
 import { RunsApi } from '../../runs/runs-api';
+import { askReportTitle } from '../../ui/report-title-dialog/report-title-dialog';
 import type { EvaluationProgress } from '../../workers/evaluator-api';
 import { CompletionPanel } from '../completion-panel/completion-panel';
 import { EvaluationCharts } from '../evaluation-charts/evaluation-charts';
 import { EvaluationFigures } from '../evaluation-figures/evaluation-figures';
 import { EvaluationSamples } from '../evaluation-samples/evaluation-samples';
 import { EvaluationSettingsForm, type BaselineChoice } from '../evaluation-settings/evaluation-settings';
-import { EvaluationWorker } from '../evaluation-worker';
+import { EvaluationCancelled, EvaluationWorker } from '../evaluation-worker';
 import { EvaluationsApi } from '../evaluations-api';
 import { NoiseMapPanel } from '../noise-map-panel/noise-map-panel';
 import { runAndStore } from './evaluation-runner';
@@ -46,6 +48,7 @@ export class EvaluationPage {
   private readonly worker = inject(EvaluationWorker);
   private readonly http = inject(HttpClient);
   private readonly router = inject(Router);
+  private readonly dialog = inject(MatDialog);
 
   protected readonly run = signal<RunDto | null>(null);
   protected readonly checkpoint = signal<CheckpointDto | null>(null);
@@ -132,20 +135,30 @@ export class EvaluationPage {
       this.shown.set(saved);
       this.stored.set(await this.evaluations.list(this.benchId(), run.id, this.checkpointId()));
     } catch (error) {
-      this.problem.set(problemText(error));
+      if (error instanceof EvaluationCancelled) this.notice.set(error.message);
+      else this.problem.set(problemText(error));
     } finally {
+      this.worker.forgetCancel();
       this.progress.set(null);
     }
+  }
+
+  /** Ends the evaluation under way: its worker is terminated and nothing is stored. */
+  protected cancel(): void {
+    if (this.busy()) this.worker.cancel();
   }
 
   protected async createReport(): Promise<void> {
     const e = this.shown();
     const run = this.run();
     if (!e || !run) return;
+    const title = await askReportTitle(this.dialog,
+      `${run.name}, step ${e.checkpoint.step}: evaluation (${e.settings.heldOutSplit} split, order ${e.settings.ngramOrder}, K = ${e.settings.K}, seed ${e.settings.seed})`);
+    if (title === null) return;
     this.reportBusy.set(true);
     try {
       const report = await firstValueFrom(this.http.post<ReportDto>(`/api/benches/${encodeURIComponent(this.benchId())}/reports`, {
-        kind: 'evaluation', title: `${run.name}, step ${e.checkpoint.step}: evaluation (${e.settings.heldOutSplit} split, order ${e.settings.ngramOrder}, K = ${e.settings.K}, seed ${e.settings.seed})`, sourceIds: [e.id],
+        kind: 'evaluation', title, sourceIds: [e.id],
       }));
       await this.router.navigateByUrl(report.link);
     } catch (error) {

@@ -8,7 +8,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import type { NoiseMap } from '../../../../shared/eval/noise-map';
 import { EvaluationWorker } from '../evaluation-worker';
-import { mapCells } from './noise-map-cells';
+import { UNSURE_BELOW, mapCells } from './noise-map-cells';
 
 const STEPS = 21;
 const RANGE = 3;
@@ -47,23 +47,25 @@ const RANGE = 3;
         <div class="map" [style.grid-template-columns]="'repeat(' + m.steps + ', 1fr)'" role="img" data-testid="noise-map"
              [attr.aria-label]="'Noise map of ' + m.cells.length + ' cells coloured by the most likely next character'">
           @for (c of m.cells; track c.key) {
-            <div class="cell" [style.background]="c.colour" [style.opacity]="0.2 + 0.8 * c.prob" [title]="c.title">
+            <div class="cell" [class.unsure]="c.unsure" [style.background-color]="c.colour" [style.color]="c.ink" [title]="c.title">
               <span>{{ c.char ?? '·' }}</span></div>
           }
         </div>
         <div class="axis-across nw-mono">noise {{ m.dims[0] + 1 }} → (−{{ range }} … {{ range }})</div>
         <ul class="legend" aria-label="Characters on the map" data-testid="noise-map-legend">
           @for (l of m.legend; track l.label) {
-            <li><span class="swatch" [style.background]="l.colour"></span><span class="nw-mono">{{ l.label }}</span>
+            <li><span class="swatch" [style.background]="l.colour" [style.color]="l.ink">{{ l.char ?? '·' }}</span><span class="nw-mono">{{ l.label }}</span>
               <span class="nw-num nw-muted">{{ l.cells }}</span></li>
           }
         </ul>
       </div>
     }
     <p class="nw-muted caption">Each cell is one noise value ξ on a {{ steps }} × {{ steps }} grid over two noise dimensions (the others at 0), sent
-      through the generative flow from the state after the prefix; its colour is the most likely next character there and its
-      strength that character's probability, so large single-colour areas mean the noise barely changes the next character
-      and many small patches mean the noise decides it.</p>
+      through the generative flow from the state after the prefix; its label and colour are the most likely next character there
+      (· = end of word), and hatched cells are those where that character has a probability below {{ unsureBelow }}. Large
+      single-colour areas mean the noise barely changes the next character; many small patches mean the noise decides it.
+      Colours: the eight of Okabe and Ito's colour-blind-safe set (Color Universal Design, 2008) for the seven most frequent
+      characters on the map and the end of the word; further characters are grey and told by their labels.</p>
   `,
   styles: `
     .row { display: flex; gap: 12px; align-items: baseline; flex-wrap: wrap; }
@@ -71,11 +73,12 @@ const RANGE = 3;
     .map-wrap { display: grid; grid-template-columns: auto minmax(0, 420px) auto; grid-template-rows: auto auto; gap: 6px 12px; align-items: center; }
     .axis-up { writing-mode: vertical-rl; transform: rotate(180deg); font-size: 11px; color: var(--mat-sys-on-surface-variant); }
     .map { display: grid; aspect-ratio: 1; border: 1px solid var(--mat-sys-outline-variant); background: #fffdf8; }
-    .cell { display: flex; align-items: center; justify-content: center; color: #fffdf8; font: 600 10px var(--nw-mono); overflow: hidden; }
+    .cell { display: flex; align-items: center; justify-content: center; font: 600 10px var(--nw-mono); overflow: hidden; }
+    .cell.unsure { background-image: repeating-linear-gradient(45deg, rgba(255, 253, 248, 0.4) 0 1.5px, transparent 1.5px 6px); }
     .axis-across { grid-column: 2; text-align: center; font-size: 11px; color: var(--mat-sys-on-surface-variant); }
     .legend { grid-column: 3; grid-row: 1; list-style: none; margin: 0; padding: 0; display: grid; gap: 4px; align-self: start; }
     .legend li { display: flex; gap: 6px; align-items: center; }
-    .swatch { width: 14px; height: 14px; border-radius: 3px; display: inline-block; }
+    .swatch { width: 16px; height: 16px; border-radius: 3px; display: inline-flex; align-items: center; justify-content: center; font: 600 10px var(--nw-mono); }
     .caption { font: var(--mat-sys-body-small); margin-top: 16px; }
   `,
 })
@@ -95,6 +98,7 @@ export class NoiseMapPanel {
   private readonly map = signal<NoiseMap | null>(null);
   protected readonly steps = STEPS;
   protected readonly range = RANGE;
+  protected readonly unsureBelow = UNSURE_BELOW;
   protected readonly dims = computed(() => Array.from({ length: this.stateSize() }, (_, i) => i));
   protected readonly drawing = computed(() => {
     const m = this.map() ?? this.initial();

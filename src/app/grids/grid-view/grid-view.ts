@@ -1,20 +1,21 @@
 import { DecimalPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { Router, RouterLink } from '@angular/router';
-import { GRID_FIGURE_LABELS, GRID_FIGURES, type GridDto, type GridFigure, type LearnabilityVerdict } from '../../../../shared/api/grids';
+import { GRID_FIGURE_LABELS, GRID_FIGURES, gridAxisLabel, type GridDto, type GridFigure, type LearnabilityVerdict } from '../../../../shared/api/grids';
 import { MAX_COMPARED_RUNS } from '../../../../shared/api/reports';
 import { CurrentBench } from '../../benches/current-bench';
 import { roleAtLeast } from '../../core/api-types';
 import { messageOf } from '../../core/api-error';
 import { ReportsApi } from '../../reports/reports-api';
 import { STATUS_LABELS } from '../../runs/run-labels';
+import { askReportTitle } from '../../ui/report-title-dialog/report-title-dialog';
 import { RunScheduler } from '../../runs/run-scheduler';
-import { axisChoice } from '../grid-axes';
 import { GridHeatmap } from '../grid-heatmap/grid-heatmap';
 import { cellFigure, heatmapData } from '../grid-heatmap/heatmap-data';
 import { GridQueue } from '../grid-queue';
@@ -43,6 +44,7 @@ export class GridView {
   private readonly queue = inject(GridQueue);
   private readonly reports = inject(ReportsApi);
   private readonly router = inject(Router);
+  private readonly dialog = inject(MatDialog);
   protected readonly scheduler = inject(RunScheduler);
   protected readonly bench = inject(CurrentBench);
   protected readonly figures = GRID_FIGURES;
@@ -142,7 +144,7 @@ export class GridView {
     }
   }
 
-  protected axisLabel(key: string): string { return axisChoice(key)?.label ?? (key === 'model' ? 'Model' : key); }
+  protected axisLabel(key: string): string { return gridAxisLabel(key); }
   protected cellValue(cell: GridDto['cells'][number]): number | null { return cellFigure(cell, this.figure()); }
   protected liveStep(runId: string | undefined): number | null {
     if (!runId) return null;
@@ -156,9 +158,11 @@ export class GridView {
   protected async saveReport(): Promise<void> {
     const g = this.grid();
     if (!g) return;
+    const title = await askReportTitle(this.dialog, g.name);
+    if (title === null) return;
     this.saving.set(true);
     try {
-      const report = await this.reports.create(this.benchId(), { kind: 'grid', title: g.name, sourceIds: [g.id] });
+      const report = await this.reports.create(this.benchId(), { kind: 'grid', title, sourceIds: [g.id] });
       await this.router.navigate(['/benches', this.benchId(), 'reports', report.id]);
     } catch (error) {
       this.problem.set(`The report could not be saved: ${messageOf(error)}`);

@@ -23,7 +23,7 @@ export interface LearnabilityDialogData { benchId: string; corpusId: string; cor
     <mat-dialog-content>
       <p>Trains {{ runCount }} models {{ placement() === 'runners' ? 'on the runners' : "in this tab's queue" }} with the same budget: character n-grams of order
         {{ orders.join(', ') }}, and a teacher-forced GRU and a stochastic state-space model at state sizes {{ sizes.join(', ') }}.
-        The verdict table says how far each is from the n-gram floor and whether the state-space model is on par with the GRU
+        The verdict table says how far each is from the best n-gram and whether the state-space model is on par with the GRU
         (within {{ tolerance }} bits/char) at each size.</p>
       <mat-form-field class="budget">
         <mat-label>Training steps per model</mat-label>

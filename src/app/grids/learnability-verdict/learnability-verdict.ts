@@ -3,7 +3,7 @@ import { ChangeDetectionStrategy, Component, input } from '@angular/core';
 import type { LearnabilityVerdict } from '../../../../shared/api/grids';
 import { STATUS_LABELS } from '../../runs/run-labels';
 
-/** The verdict of a learnability check: bits/char of every model, its gap to the n-gram floor, and "on par" per state size. */
+/** The verdict of a learnability check: bits/char of every model, its gap to the best n-gram, and "on par" per state size. */
 @Component({
   selector: 'nw-learnability-verdict',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -12,13 +12,14 @@ import { STATUS_LABELS } from '../../runs/run-labels';
     <div class="nw-card">
       <p class="lead">
         @if (verdict().ngramFloor; as f) {
-          n-gram floor: the best n-gram (order {{ f.order }}) reaches <span class="nw-num">{{ f.bitsPerChar | number: '1.3-3' }}</span><span class="nw-unit">bits/char</span>.
-        } @else { The n-gram floor is known once the n-gram runs have finished. }
+          Best n-gram: order {{ f.order }} reaches <span class="nw-num" data-testid="best-ngram">{{ f.bitsPerChar | number: '1.3-3' }}</span><span class="nw-unit">bits/char</span>
+          (a reference to beat, not a limit: a model with a state can go below it).
+        } @else { The best n-gram is known once the n-gram runs have finished. }
         Every model trained for {{ verdict().budgetSteps | number }} steps. @if (!verdict().complete) { <strong>Still training: figures fill in as runs end.</strong> }
       </p>
       <div class="tables">
         <table aria-label="Bits per character of every model" data-testid="verdict-models">
-          <thead><tr><th>Model</th><th>Status</th><th class="nw-num">Held-out</th><th class="nw-num">Gap to n-gram floor</th></tr></thead>
+          <thead><tr><th>Model</th><th>Status</th><th class="nw-num">Held-out</th><th class="nw-num">Gap to best n-gram</th></tr></thead>
           <tbody>
             @for (r of verdict().rows; track r.model) {
               <tr>
@@ -45,8 +46,9 @@ import { STATUS_LABELS } from '../../runs/run-labels';
           </tbody>
         </table>
       </div>
-      <p class="caption">Held-out bits per character on the validation words (lower is better; for the state-space model an upper bound
-        from its importance-weighted bound). “On par” means the state-space model is at most {{ verdict().toleranceBits }} bits/char
+      <p class="caption">Held-out bits per character on the validation words, the end of each word counted as one more character
+        (lower is better; exact for the n-gram and the GRU, an upper bound from the importance-weighted bound for the state-space model);
+        a negative gap means the model beats the best n-gram. “On par” means the state-space model is at most {{ verdict().toleranceBits }} bits/char
         above the teacher-forced GRU of the same state size. A short fixed budget favours fast learners: read a “no” as “not at this budget”.</p>
     </div>
   `,

@@ -21,7 +21,7 @@ const CORPUS = {
   alphabetSize: 26, unigramEntropyBits: 7, uploadedBy: null, createdAt: '2026-12-01T00:00:00Z', canEdit: true,
 };
 
-async function setUp() {
+async function setUp(role: 'owner' | 'coach' | 'member' | 'viewer' = 'member') {
   const create = vi.fn(async () => ({ id: 'run-1' }));
   const enqueue = vi.fn(async () => undefined);
   const measure = vi.fn(async () => ({
@@ -37,7 +37,7 @@ async function setUp() {
       { provide: RunsApi, useValue: { corpora: async () => [CORPUS], create } },
       { provide: RunScheduler, useValue: { enqueue } },
       { provide: TimeProbe, useValue: { measure, cancel: vi.fn() } },
-      { provide: CurrentBench, useValue: { current: signal({ id: 'b1', name: 'Bench' }), open: async () => null } },
+      { provide: CurrentBench, useValue: { current: signal({ id: 'b1', name: 'Bench', role }), open: async () => null } },
     ],
   });
   const fixture = TestBed.createComponent(NewRun);
@@ -138,9 +138,9 @@ describe('NewRun form', { timeout: 30_000 }, () => {
     expect(text(fixture, 'time-estimate')).toContain('about 9 min 05 s'); // 5 + 2000 × 0.25 + 20 × 2 = 545 s
   });
 
-  it('creates the run and queues it when everything is valid (quick look preset)', async () => {
+  it('creates the run and queues it when everything is valid (short trial preset)', async () => {
     const { loader, create, enqueue } = await setUp();
-    await (await loader.getHarness(MatButtonHarness.with({ text: /Quick look/ }))).click();
+    await (await loader.getHarness(MatButtonHarness.with({ text: /Short trial/ }))).click();
     await (await input(loader, 'name')).setValue('First look');
     await (await loader.getHarness(MatSelectHarness)).clickOptions({ text: /Syllables/ });
     await (await loader.getHarness(MatButtonHarness.with({ text: /Start training/ }))).click();
@@ -150,5 +150,54 @@ describe('NewRun form', { timeout: 30_000 }, () => {
     expect(body.name).toBe('First look');
     expect(body.settings.training.steps).toBe(300);
     expect(enqueue).toHaveBeenCalledTimes(1);
+  });
+
+  it('shows corpus, steps, K and seed on the last step before starting', async () => {
+    const { fixture, loader } = await setUp();
+    await (await loader.getHarness(MatButtonHarness.with({ text: /Thorough/ }))).click();
+    await (await loader.getHarness(MatSelectHarness)).clickOptions({ text: /Syllables/ });
+    const stepper = await loader.getHarness(MatStepperHarness);
+    await (await stepper.getSteps({ label: 'Check and start' }))[0]!.select();
+    await fixture.whenStable();
+    expect(text(fixture, 'review-corpus')).toBe('Syllables');
+    expect(text(fixture, 'review-steps')).toBe('5,000');
+    expect(text(fixture, 'review-k')).toBe('16');
+    expect(text(fixture, 'review-seed')).toBe('1');
+  });
+
+  it('gives every model size a hint with its range and a unit', async () => {
+    const { loader } = await setUp();
+    const stepper = await loader.getHarness(MatStepperHarness);
+    await (await stepper.getSteps({ label: 'Model' }))[0]!.select();
+    for (const label of ['State size', 'Observation width', 'Flow network width', 'Encoder width', 'Proposal width', 'Samples per word (K)']) {
+      const f = await field(loader, label);
+      expect((await f.getTextHints()).join(' '), label).toMatch(/\d+–\d+/);
+      expect(await f.hasLabel(), label).toBe(true);
+    }
+    expect((await (await field(loader, 'Observation width')).getTextHints()).join(' ')).toContain('0 = a linear map');
+  });
+});
+
+describe('NewRun per role', { timeout: 30_000 }, () => {
+  for (const role of ['owner', 'coach', 'member'] as const) {
+    it(`lets a ${role} fill in the form and start`, async () => {
+      const { fixture, loader } = await setUp(role);
+      expect(text(fixture, 'viewer-note')).toBe('');
+      expect(await (await loader.getHarness(MatButtonHarness.with({ text: /Start training/ }))).isDisabled()).toBe(false);
+      expect(await (await input(loader, 'name')).isDisabled()).toBe(false);
+    });
+  }
+
+  it('shows a viewer why, disables the fields, presets and Start, and does not let the steps be walked', async () => {
+    const { fixture, loader, create } = await setUp('viewer');
+    expect(text(fixture, 'viewer-note')).toMatch(/Viewers can look at runs but cannot start them/);
+    expect(await (await input(loader, 'name')).isDisabled()).toBe(true);
+    expect(await (await loader.getHarness(MatButtonHarness.with({ text: /Short trial/ }))).isDisabled()).toBe(true);
+    expect(await (await loader.getHarness(MatButtonHarness.with({ text: /Start training/ }))).isDisabled()).toBe(true);
+    const stepper = await loader.getHarness(MatStepperHarness);
+    await (await stepper.getSteps({ label: 'Model' }))[0]!.select();
+    expect(await (await stepper.getSteps({ label: 'Model' }))[0]!.isSelected()).toBe(false);
+    expect(await (await stepper.getSteps({ label: 'Corpus and split' }))[0]!.isSelected()).toBe(true);
+    expect(create).not.toHaveBeenCalled();
   });
 });

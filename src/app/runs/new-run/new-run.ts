@@ -1,7 +1,7 @@
 import { DecimalPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
-import { ReactiveFormsModule, type AbstractControl, type FormControl } from '@angular/forms';
+import { FormControl, ReactiveFormsModule, Validators, type AbstractControl } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCheckboxModule } from '@angular/material/checkbox';
 import { MatChipsModule } from '@angular/material/chips';
@@ -16,6 +16,7 @@ import type { CorpusSummary } from '../../../../shared/api/corpora';
 import type { RunPlacement } from '../../../../shared/api/runners';
 import { FLOW_KINDS, type FlowKind } from '../../../../shared/model/flows/flow';
 import { ApiError, messageOf } from '../../core/api-error';
+import { roleAtLeast } from '../../core/api-types';
 import { CurrentBench } from '../../benches/current-bench';
 import { PlacementChoice } from '../../runners/placement-choice/placement-choice';
 import { applyServerErrors } from '../../ui/form-messages';
@@ -76,6 +77,11 @@ export class NewRun {
   private readonly value = toSignal(this.form.valueChanges, { initialValue: this.form.getRawValue() });
   protected readonly family = computed(() => { this.value(); return this.form.controls.model.controls.family.value; });
   private readonly corpus = computed(() => { this.value(); return this.corpora().find((c) => c.id === this.form.controls.data.controls.corpusId.value) ?? null; });
+  protected readonly corpusName = computed(() => this.corpus()?.name ?? null);
+  /** Viewers may look at the form but not fill it in or start a run (the server refuses them too). */
+  protected readonly canStart = computed(() => roleAtLeast(this.bench.current()?.role ?? 'viewer', 'member'));
+  /** Stands in for each step's controls for a viewer: never valid, so the steps after the first stay closed. */
+  protected readonly closedStep = new FormControl<string | null>(null, Validators.required);
   /** Trainable scalars, from the shared/model parameter tables (null: n-gram, or a setting is invalid). */
   protected readonly parameterCount = computed(() => {
     this.value();
@@ -109,6 +115,10 @@ export class NewRun {
     effect(() => {
       this.value();
       if (this.onLastStep()) untracked(() => this.measureTime());
+    });
+    effect(() => {
+      if (this.canStart()) this.form.enable();
+      else this.form.disable();
     });
     effect(() => {
       const id = this.benchId();
@@ -156,6 +166,10 @@ export class NewRun {
   }
 
   protected async start(): Promise<void> {
+    if (!this.canStart()) {
+      this.problem.set('Viewers cannot start runs. Ask a coach or owner of the bench for the member role.');
+      return;
+    }
     this.form.markAllAsTouched();
     if (this.form.invalid) {
       this.problem.set('Some settings need fixing; the steps marked in red say what to change.');

@@ -1,5 +1,5 @@
 import { DatePipe, DecimalPipe } from '@angular/common';
-import { ChangeDetectionStrategy, Component, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
@@ -12,6 +12,7 @@ import { RouterLink } from '@angular/router';
 import type { CorpusSummary } from '../../../../shared/api/corpora';
 import { RUN_FAMILIES, RUN_SORT_FIELDS, RUN_STATUSES, type RunDto, type RunFamily, type RunStatus } from '../../../../shared/api/runs';
 import { messageOf } from '../../core/api-error';
+import { roleAtLeast } from '../../core/api-types';
 import { CurrentBench } from '../../benches/current-bench';
 import { LiveEvents } from '../../runners/live-events';
 import { CheckpointImport } from '../checkpoint-import/checkpoint-import';
@@ -60,6 +61,8 @@ export class RunList {
   protected readonly loading = signal(false);
   protected readonly problem = signal<string | null>(null);
   protected readonly showImport = signal(false);
+  /** Viewers look; members and up start and import runs. */
+  protected readonly canStart = computed(() => roleAtLeast(this.bench.current()?.role ?? 'viewer', 'member'));
   private request = 0;
 
   constructor() {

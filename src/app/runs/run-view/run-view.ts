@@ -59,9 +59,48 @@ export class RunView {
 
   protected readonly live = computed(() => this.scheduler.live(this.runId()));
   protected readonly progress = computed(() => this.live()?.progress() ?? null);
-  protected readonly percent = computed(() => {
+  /** Steps reached and planned: live while this tab trains, otherwise as the server stored them. */
+  protected readonly stepLine = computed(() => {
     const p = this.progress();
-    return p && p.totalSteps > 0 ? (100 * p.step) / p.totalSteps : 0;
+    if (p) return { step: p.step, total: p.totalSteps };
+    const r = this.run();
+    return r ? { step: r.stepsDone, total: r.settings.training?.steps ?? 0 } : null;
+  });
+  protected readonly percent = computed(() => {
+    const s = this.stepLine();
+    return s && s.total > 0 ? Math.min(100, (100 * s.step) / s.total) : 0;
+  });
+  /** At the last step the run is finishing: there is nothing left to pause. */
+  protected readonly atLastStep = computed(() => {
+    const p = this.progress();
+    return !!p && p.totalSteps > 0 && p.step >= p.totalSteps;
+  });
+  /** Live speed, or the last one the run stored. */
+  protected readonly speed = computed(() => this.progress()?.wordsPerSecond ?? this.run()?.summary.wordsPerSecond ?? null);
+  /** Time left only while the worker trains: a paused or ended run has none to show. */
+  protected readonly eta = computed(() => (this.live()?.state() === 'training' ? this.progress()?.etaSeconds ?? null : null));
+  /** One wording for the compute, live or (after a reload) from the run's stored summary. */
+  protected readonly engineText = computed(() => {
+    const e = this.live()?.engine();
+    const s = this.run()?.summary;
+    const backend = e?.backend ?? s?.backend;
+    if (!backend) return null;
+    const threads = e?.threads ?? s?.threads ?? 1;
+    const params = e?.parameterCount ?? s?.parameterCount;
+    return `${backend === 'wasm' ? 'WebAssembly' : backend}${(e?.simd ?? s?.simd) ? ' + SIMD' : ''}, ${threads} thread${threads === 1 ? '' : 's'}`
+      + (params !== undefined ? `, ${params.toLocaleString('en')} parameters` : '') + (e ? '' : ' (last session)');
+  });
+  /** Fresh samples of this session, or the last ones the run stored. */
+  protected readonly samples = computed(() => {
+    const live = this.live()?.samples() ?? [];
+    return live.length > 0 ? live : (this.run()?.summary.lastSamples ?? []);
+  });
+  /** The training figure: live, or the last one stored. */
+  protected readonly trainBound = computed(() => {
+    const p = this.progress();
+    if (p) return { bits: p.trainBitsPerChar, isBound: p.isBound };
+    const s = this.run()?.summary;
+    return s?.lastBoundBitsPerChar != null ? { bits: s.lastBoundBitsPerChar, isBound: s.lastIsBound ?? true } : null;
   });
   protected readonly stateLabel = computed(() => {
     const l = this.live();
@@ -72,7 +111,10 @@ export class RunView {
   /** The server says it trains, but no worker in this tab has it (e.g. the tab that trained it was closed). */
   protected readonly orphaned = computed(() => {
     const r = this.run();
-    return !!r && !this.live()?.isActive && this.live()?.state() !== 'waiting' && ['training', 'paused', 'queued'].includes(r.status);
+    const state = this.live()?.state();
+    // A run that ended in this tab is not orphaned, whatever a late status update left on the server.
+    if (state === 'finished' || state === 'stopped' || state === 'failed') return false;
+    return !!r && !this.live()?.isActive && state !== 'waiting' && ['training', 'paused', 'queued'].includes(r.status);
   });
   protected readonly latestCheckpoint = computed(() => this.checkpoints().reduce<CheckpointDto | null>((a, c) => (!a || c.step > a.step ? c : a), null));
   private liveSubs: Subscription[] = [];
