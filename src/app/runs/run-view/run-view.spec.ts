@@ -21,6 +21,7 @@ globalThis.matchMedia ??= ((query: string) => ({
 class FakeCurves {
   readonly history = input<unknown>();
   readonly live = input<unknown>();
+  readonly family = input<unknown>();
 }
 
 const RUN = {
