@@ -14,6 +14,7 @@ import { requireAuth } from './middleware/auth';
 import { loadBench } from './middleware/bench-access';
 import { apiNotFound, errorHandler } from './middleware/error-handler';
 import { securityHeaders } from './middleware/security-headers';
+import { textGuard } from './middleware/text-guard';
 import { serverModules } from './modules/registry';
 import { ErrorCode } from '../shared/api/errors';
 import { HttpError } from './http-error';
@@ -35,6 +36,7 @@ export function createApp(config: Config, deps: AppDeps): Express {
 
   const api = Router();
   api.use(express.json({ limit: config.jsonBodyLimitBytes }));
+  api.use(textGuard);
   api.use((_req, _res, next) => RequestContext.create(ctx.orm.em, next));
   api.use((_req, res, next) => {
     res.set('Cache-Control', 'no-store');

@@ -1,5 +1,5 @@
 /** Opens the SQLite database through MikroORM and brings its schema up to date with the Migrator. */
-import { BetterSqliteDriver } from '@mikro-orm/better-sqlite';
+import type { BetterSqliteDriver } from '@mikro-orm/better-sqlite';
 import { MikroORM, type Options } from '@mikro-orm/core';
 import { Migrator } from '@mikro-orm/migrations';
 import { mkdirSync } from 'node:fs';
@@ -7,6 +7,7 @@ import { dirname, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { entities } from './entities';
 import { migrationsList } from './migrations';
+import { BoundSqliteDriver } from './sqlite-driver';
 
 export type Orm = MikroORM<BetterSqliteDriver>;
 
@@ -14,7 +15,7 @@ const migrationsDir = resolve(dirname(fileURLToPath(import.meta.url)), '../migra
 
 export function ormOptions(databasePath: string): Options<BetterSqliteDriver> {
   return {
-    driver: BetterSqliteDriver,
+    driver: BoundSqliteDriver,
     dbName: databasePath,
     entities,
     extensions: [Migrator],
