@@ -1,6 +1,8 @@
 /** What route factories receive: configuration and the services the app was built with. */
 import type { Clock } from './clock';
+import type { Request } from 'express';
 import type { Config } from './config';
+import type { Logger } from './logging';
 import type { Orm } from './db/orm';
 import type { Mailbox } from './modules/mail/mailbox';
 import type { Mailer } from './modules/mail/mailer';
@@ -11,8 +13,10 @@ export interface AppDeps {
   /** Captured mail (development); `GET /api/admin/mail` reads it. Null when nothing is captured. */
   mailbox?: Mailbox | null;
   clock?: Clock;
-  /** Where server faults are reported; defaults to console.error. */
-  logError?: (error: unknown) => void;
+  /** The server log (pino); defaults to one on stdout at `config.logLevel`. */
+  logger?: Logger;
+  /** Where server faults are reported besides the log (tests collect them); the log gets only `safeError(error)`. */
+  logError?: (error: unknown, req?: Request) => void;
 }
 
 export interface AppContext {
@@ -21,5 +25,7 @@ export interface AppContext {
   mailer: Mailer;
   mailbox: Mailbox | null;
   clock: Clock;
-  logError: (error: unknown) => void;
+  logger: Logger;
+  /** Reports a server fault: to the log as `safeError(error)` with the request id, and to `AppDeps.logError`. */
+  logError: (error: unknown, req?: Request) => void;
 }

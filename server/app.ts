@@ -15,22 +15,29 @@ import { loadBench } from './middleware/bench-access';
 import { apiNotFound, errorHandler } from './middleware/error-handler';
 import { securityHeaders } from './middleware/security-headers';
 import { textGuard } from './middleware/text-guard';
+import { createLogger, loggerOf, requestLogger, safeError } from './logging';
 import { serverModules } from './modules/registry';
 import { ErrorCode } from '../shared/api/errors';
 import { HttpError } from './http-error';
 import './request-state';
 
 export function createApp(config: Config, deps: AppDeps): Express {
+  const logger = deps.logger ?? createLogger(config.logLevel);
   const ctx: AppContext = {
     config,
     orm: deps.orm,
     mailer: deps.mailer,
     mailbox: deps.mailbox ?? null,
     clock: deps.clock ?? systemClock,
-    logError: deps.logError ?? ((error) => console.error(error)),
+    logger,
+    logError: (error, req) => {
+      loggerOf(req, logger).error({ err: safeError(error) }, 'server fault');
+      deps.logError?.(error, req);
+    },
   };
   const app = express();
   app.disable('x-powered-by');
+  app.use(requestLogger(logger));
   if (config.trustProxyHops > 0) app.set('trust proxy', config.trustProxyHops);
   app.use(securityHeaders({ https: config.publicUrl.startsWith('https:') }));
 

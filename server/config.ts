@@ -40,6 +40,10 @@ export interface Config {
   staticDir: string;
   /** Reverse proxies in front of the server (0 = none); the rate limit then keys on the client address they forward. */
   trustProxyHops: number;
+  /** pino level of the server log (request lines are `info`); `silent` in tests unless LOG_LEVEL is set. */
+  logLevel: 'fatal' | 'error' | 'warn' | 'info' | 'debug' | 'trace' | 'silent';
+  /** Log every SQL statement (placeholders only, never values) at debug level; off unless DEBUG_SQL. */
+  debugSql: boolean;
 }
 
 export class ConfigError extends Error {
@@ -115,6 +119,11 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     AUTH_RATE_WINDOW_MS: int(15 * 60 * 1000, 1, 24 * 3600 * 1000),
     STATIC_DIR: str('dist/noisewright/browser'),
     TRUST_PROXY_HOPS: int(0, 0, 10),
+    LOG_LEVEL: z
+      .enum(['', 'fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent'], { error: 'use fatal, error, warn, info, debug, trace or silent' })
+      .optional()
+      .transform((v) => (v ? v : nodeEnv === 'test' ? 'silent' : 'info')),
+    DEBUG_SQL: bool(false),
   });
   const parsed = schema.safeParse(env);
   if (!parsed.success) {
@@ -166,5 +175,7 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     authRateLimit: { max: e.AUTH_RATE_LIMIT, windowMs: e.AUTH_RATE_WINDOW_MS },
     staticDir: e.STATIC_DIR,
     trustProxyHops: e.TRUST_PROXY_HOPS,
+    logLevel: e.LOG_LEVEL as Config['logLevel'],
+    debugSql: e.DEBUG_SQL,
   };
 }

@@ -12,6 +12,7 @@ import { startMailCapture, type MailCapture } from './modules/mail/mail-capture-
 import { Mailbox } from './modules/mail/mailbox';
 import { smtpMailer, type Mailer } from './modules/mail/mailer';
 import { seedDemoIfEmpty } from './seeders/demo-seed';
+import { createLogger } from './logging';
 
 export interface RunningServer {
   /** Base URL of the running server, e.g. `http://127.0.0.1:43117`. */
@@ -37,7 +38,8 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
   };
 
   try {
-    const orm = await openDatabase(config.databasePath);
+    const logger = createLogger(config.logLevel);
+    const orm = await openDatabase(config.databasePath, { debugSql: config.debugSql, logger: (message) => logger.debug({ sql: message }, 'sql') });
     cleanups.push(() => orm.close(true));
     const seeded = config.seedDemo ? await seedDemoIfEmpty(orm, config, clock) : false;
 
@@ -81,7 +83,7 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
     if (!config.publicUrlSet && config.port === 0) config = { ...config, publicUrl: url };
     config = { ...config, port };
 
-    server.on('request', createApp(config, { orm, mailer, mailbox, clock }));
+    server.on('request', createApp(config, { orm, mailer, mailbox, clock, logger }));
     return { url, port, config, mailbox, orm, seeded, close };
   } catch (error) {
     await close();

@@ -13,7 +13,7 @@ export type Orm = MikroORM<BetterSqliteDriver>;
 
 const migrationsDir = resolve(dirname(fileURLToPath(import.meta.url)), '../migrations');
 
-export function ormOptions(databasePath: string): Options<BetterSqliteDriver> {
+export function ormOptions(databasePath: string, opts: { debugSql?: boolean; logger?: (message: string) => void } = {}): Options<BetterSqliteDriver> {
   return {
     driver: BoundSqliteDriver,
     dbName: databasePath,
@@ -22,7 +22,11 @@ export function ormOptions(databasePath: string): Options<BetterSqliteDriver> {
     discovery: { requireEntitiesArray: true },
     allowGlobalContext: false,
     forceUtcTimezone: true,
-    debug: false,
+    // Query logging only when asked for (DEBUG_SQL); statements are bound, so the text holds `?`, not values.
+    debug: opts.debugSql ? ['query'] : false,
+    ...(opts.logger ? { logger: opts.logger } : {}),
+    // A failed statement's message must not carry the values (knex otherwise writes them into it).
+    driverOptions: { compileSqlOnError: false },
     migrations: {
       path: migrationsDir,
       pathTs: migrationsDir,
@@ -38,9 +42,12 @@ export function ormOptions(databasePath: string): Options<BetterSqliteDriver> {
 }
 
 /** Opens (creating the folder if needed) and migrates the database. */
-export async function openDatabase(databasePath: string, options: { migrate?: boolean } = {}): Promise<Orm> {
+export async function openDatabase(
+  databasePath: string,
+  options: { migrate?: boolean; debugSql?: boolean; logger?: (message: string) => void } = {},
+): Promise<Orm> {
   if (databasePath !== ':memory:') mkdirSync(dirname(resolve(databasePath)), { recursive: true });
-  const orm = await MikroORM.init<BetterSqliteDriver>(ormOptions(databasePath));
+  const orm = await MikroORM.init<BetterSqliteDriver>(ormOptions(databasePath, options));
   if (options.migrate !== false) {
     await orm.getMigrator().up();
   }
