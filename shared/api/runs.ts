@@ -255,7 +255,7 @@ export const truncateMetricsQuerySchema = z.object({
 export const checkpointUploadQuerySchema = z.object({
   reason: z.enum(['auto', 'stop', 'manual'], { error: 'Give reason as auto, stop or manual.' }).default('manual'),
   /** The training or validation bound at this step in bits per character (leave out when unknown). */
-  boundBitsPerChar: z.coerce.number({ error: 'Give boundBitsPerChar as a number.' }).refine(Number.isFinite, 'Give a finite bound.').optional(),
+  boundBitsPerChar: z.coerce.number({ error: 'Give boundBitsPerChar as a number.' }).refine(Number.isFinite, 'Give a finite bound.').refine((v) => v >= 0, 'Give a bound of 0 or more (bits per character are never negative).').optional(),
 });
 
 export interface RunDto {
