@@ -16,6 +16,7 @@ import { apiNotFound, errorHandler } from './middleware/error-handler';
 import { securityHeaders } from './middleware/security-headers';
 import { textGuard } from './middleware/text-guard';
 import { createLogger, loggerOf, requestLogger, safeError } from './logging';
+import { configureCpuPool } from './workers/cpu-pool';
 import { serverModules } from './modules/registry';
 import { ErrorCode } from '../shared/api/errors';
 import { HttpError } from './http-error';
@@ -23,6 +24,7 @@ import './request-state';
 
 export function createApp(config: Config, deps: AppDeps): Express {
   const logger = deps.logger ?? createLogger(config.logLevel);
+  configureCpuPool({ threads: config.workerThreads, queueLimit: config.workerQueueLimit });
   const ctx: AppContext = {
     config,
     orm: deps.orm,

@@ -3,6 +3,7 @@
  * `loadConfig(process.env)` in main.ts; tests build their own with `loadConfig({ ... })`.
  */
 import { randomBytes } from 'node:crypto';
+import { availableParallelism } from 'node:os';
 import { dirname, join } from 'node:path';
 import { z } from 'zod';
 
@@ -40,6 +41,11 @@ export interface Config {
   staticDir: string;
   /** Reverse proxies in front of the server (0 = none); the rate limit then keys on the client address they forward. */
   trustProxyHops: number;
+  /** Invitations per window: per sender, per bench, and to one address of a bench. */
+  inviteRateLimit: { perSender: number; perBench: number; perAddress: number; windowMs: number };
+  /** Worker threads for bcrypt and corpus parsing (default: the number of cores) and the queue before 503. */
+  workerThreads: number;
+  workerQueueLimit: number;
   /** pino level of the server log (request lines are `info`); `silent` in tests unless LOG_LEVEL is set. */
   logLevel: 'fatal' | 'error' | 'warn' | 'info' | 'debug' | 'trace' | 'silent';
   /** Log every SQL statement (placeholders only, never values) at debug level; off unless DEBUG_SQL. */
@@ -119,6 +125,12 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     AUTH_RATE_WINDOW_MS: int(15 * 60 * 1000, 1, 24 * 3600 * 1000),
     STATIC_DIR: str('dist/noisewright/browser'),
     TRUST_PROXY_HOPS: int(0, 0, 10),
+    INVITE_RATE_LIMIT: int(20, 1, 1_000_000),
+    INVITE_BENCH_RATE_LIMIT: int(50, 1, 1_000_000),
+    INVITE_ADDRESS_RATE_LIMIT: int(3, 1, 1_000_000),
+    INVITE_RATE_WINDOW_MS: int(3600 * 1000, 1, 24 * 3600 * 1000),
+    WORKER_THREADS: int(0, 0, 256),
+    WORKER_QUEUE_LIMIT: int(200, 1, 100_000),
     LOG_LEVEL: z
       .enum(['', 'fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent'], { error: 'use fatal, error, warn, info, debug, trace or silent' })
       .optional()
@@ -175,6 +187,14 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     authRateLimit: { max: e.AUTH_RATE_LIMIT, windowMs: e.AUTH_RATE_WINDOW_MS },
     staticDir: e.STATIC_DIR,
     trustProxyHops: e.TRUST_PROXY_HOPS,
+    inviteRateLimit: {
+      perSender: e.INVITE_RATE_LIMIT,
+      perBench: e.INVITE_BENCH_RATE_LIMIT,
+      perAddress: e.INVITE_ADDRESS_RATE_LIMIT,
+      windowMs: e.INVITE_RATE_WINDOW_MS,
+    },
+    workerThreads: e.WORKER_THREADS || Math.max(1, availableParallelism()),
+    workerQueueLimit: e.WORKER_QUEUE_LIMIT,
     logLevel: e.LOG_LEVEL as Config['logLevel'],
     debugSql: e.DEBUG_SQL,
   };

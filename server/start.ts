@@ -13,6 +13,7 @@ import { Mailbox } from './modules/mail/mailbox';
 import { smtpMailer, type Mailer } from './modules/mail/mailer';
 import { seedDemoIfEmpty } from './seeders/demo-seed';
 import { createLogger } from './logging';
+import { cpuPool } from './workers/cpu-pool';
 
 export interface RunningServer {
   /** Base URL of the running server, e.g. `http://127.0.0.1:43117`. */
@@ -39,6 +40,7 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
 
   try {
     const logger = createLogger(config.logLevel);
+    cleanups.push(() => cpuPool.close());
     const orm = await openDatabase(config.databasePath, { debugSql: config.debugSql, logger: (message) => logger.debug({ sql: message }, 'sql') });
     cleanups.push(() => orm.close(true));
     const seeded = config.seedDemo ? await seedDemoIfEmpty(orm, config, clock) : false;

@@ -40,6 +40,8 @@ export function errorHandler(logError: (error: unknown, req?: Request) => void):
           : bodyParserError(err);
     const error = known ?? new HttpError(500, ErrorCode.Internal, 'Something went wrong on the server. Try again; if it keeps happening, tell your admin.');
     if (!known) logError(err, req);
+    const retryAfter = (error as { retryAfterSeconds?: unknown }).retryAfterSeconds;
+    if (typeof retryAfter === 'number') res.set('Retry-After', String(retryAfter));
     const body: ApiErrorBody = { error: { code: error.code, message: error.message } };
     if (error.fields) body.error.fields = error.fields;
     res.status(error.status).json(body);

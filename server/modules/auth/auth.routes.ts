@@ -7,7 +7,7 @@ import { changePasswordSchema, signInSchema, signUpSchema } from '../../../share
 import type { AppContext } from '../../app-context';
 import { conflict, HttpError, validationFailed } from '../../http-error';
 import { requireAuth } from '../../middleware/auth';
-import { authRateLimit } from '../../middleware/rate-limit';
+import { authRateLimit, perKeyRateLimit } from '../../middleware/rate-limit';
 import { parseBody } from '../../middleware/validate';
 import { currentUser } from '../../request-state';
 import { toUserDto, UserRepository } from '../users/user.repository';
@@ -69,7 +69,9 @@ export function authRoutes(ctx: AppContext): Router {
     res.json({ user: toUserDto(currentUser(req)) });
   });
 
-  router.post('/password', signedIn, async (req, res) => {
+  // Limited per person (a stolen token must not turn into password guessing) and per address.
+  const passwordChangeLimit = perKeyRateLimit(ctx.config.authRateLimit, (req) => req.authUser?.id ?? null, 'password changes for your account');
+  router.post('/password', signedIn, passwordChangeLimit, authRateLimit(ctx.config.authRateLimit), async (req, res) => {
     const body = parseBody(changePasswordSchema, req.body);
     const user = await new UserRepository(em()).findByIdWithPassword(currentUser(req).id);
     if (!user || !(await verifyPassword(body.currentPassword, user.passwordHash))) {

@@ -16,6 +16,18 @@ const INSERT_CHUNK = 2000;
 
 const SORT_COLUMNS = { word: 'word', count: '`count`', length: '`length`' } as const;
 
+/** What a save needs: the parse summary and the rows (from the CPU pool, or from `analyseUpload` directly). */
+export interface SavableCorpus {
+  fileName: string;
+  options: AnalysedUpload['options'];
+  parsed: Pick<AnalysedUpload['parsed'], 'ok' | 'format' | 'stats' | 'normalisation'> & { alphabet: { chars: string[] } };
+  rows: { word: string; count: number; split: SplitName; length: number }[];
+}
+
+function savableOf(a: AnalysedUpload): SavableCorpus {
+  return { fileName: a.fileName, options: a.options, parsed: a.parsed, rows: wordRows(a) };
+}
+
 /** Uploader, coaches and owners (an admin acts as owner) may rename and delete; viewers never. */
 export function canEditCorpus(corpus: Corpus, user: User, role: Role): boolean {
   if (roleAtLeast(role, 'coach')) return true;
@@ -37,10 +49,10 @@ export class CorpusRepository {
    * Saves a corpus (must have no errors) with all its words and an activity event in one transaction:
    * either everything is written or nothing.
    */
-  async save(input: { bench: Bench; user: User | null; name: string; description: string; upload: AnalysedUpload; at: Date }): Promise<Corpus> {
-    const { parsed, options, fileName } = input.upload;
+  async save(input: { bench: Bench; user: User | null; name: string; description: string; upload: AnalysedUpload | SavableCorpus; at: Date }): Promise<Corpus> {
+    const upload = 'splitParts' in input.upload ? savableOf(input.upload) : input.upload;
+    const { parsed, options, fileName, rows } = upload;
     if (!parsed.ok || !parsed.format) throw new Error('A corpus with errors cannot be saved.');
-    const rows = wordRows(input.upload);
     return this.em.transactional(async (em) => {
       const corpus = em.create(Corpus, {
         bench: input.bench,

@@ -1,0 +1,81 @@
+/**
+ * One pool of worker threads (piscina) for CPU-heavy work, shared by the whole process: sized to the machine
+ * (`WORKER_THREADS`, default the number of cores) with a bounded queue (`WORKER_QUEUE_LIMIT`). When the queue
+ * is full the request gets 503 with `Retry-After` instead of waiting without end; the event loop stays free
+ * for every other request meanwhile.
+ */
+import { availableParallelism } from 'node:os';
+import { Piscina } from 'piscina';
+import type { CorpusOptions } from '../../shared/api/corpora';
+import { ErrorCode } from '../../shared/api/errors';
+import { HttpError } from '../http-error';
+import type { AnalysedCorpus, CpuTask } from './cpu-tasks';
+
+export const RETRY_AFTER_SECONDS = 5;
+
+export interface CpuPoolSettings {
+  threads: number;
+  queueLimit: number;
+}
+
+export function defaultPoolSettings(): CpuPoolSettings {
+  return { threads: Math.max(1, availableParallelism()), queueLimit: 200 };
+}
+
+let settings: CpuPoolSettings = defaultPoolSettings();
+let pool: Piscina | null = null;
+
+/** Sets the pool size before its first use (server start reads WORKER_THREADS / WORKER_QUEUE_LIMIT). */
+export function configureCpuPool(next: CpuPoolSettings): void {
+  if (pool && (pool.options.maxThreads !== next.threads || pool.options.maxQueue !== next.queueLimit)) {
+    const old = pool;
+    pool = null;
+    void old.destroy();
+  }
+  settings = next;
+}
+
+function thePool(): Piscina {
+  pool ??= new Piscina({
+    filename: new URL('./cpu-worker.mjs', import.meta.url).href,
+    minThreads: 1,
+    maxThreads: settings.threads,
+    maxQueue: settings.queueLimit,
+    idleTimeout: 60_000,
+  });
+  return pool;
+}
+
+export class ServerBusyError extends HttpError {
+  override name = 'ServerBusyError';
+  readonly retryAfterSeconds = RETRY_AFTER_SECONDS;
+  constructor() {
+    super(503, ErrorCode.ServerBusy, `The server is busy with other requests; try again in ${RETRY_AFTER_SECONDS} seconds.`);
+  }
+}
+
+async function run<T>(task: CpuTask, transfer?: ArrayBuffer[]): Promise<T> {
+  const p = thePool();
+  if (p.queueSize >= settings.queueLimit) throw new ServerBusyError();
+  try {
+    return (await p.run(task, transfer ? { transferList: transfer } : undefined)) as T;
+  } catch (error) {
+    if (error instanceof Error && /queue is at limit/i.test(error.message)) throw new ServerBusyError();
+    throw error;
+  }
+}
+
+export const cpuPool = {
+  hash: (password: string, cost: number) => run<string>({ kind: 'hash', password, cost }),
+  compare: (password: string, hash: string) => run<boolean>({ kind: 'compare', password, hash }),
+  /** Parses and analyses an upload in a worker thread; `rows` = also return the rows to store. */
+  analyse: (bytes: Uint8Array, fileName: string, options: CorpusOptions, rows: boolean) =>
+    run<AnalysedCorpus>({ kind: 'analyse', bytes, fileName, options, rows }),
+  /** Threads and queue in use (for tests and the load benchmark). */
+  stats: () => ({ ...settings, running: pool?.threads.length ?? 0, queued: pool?.queueSize ?? 0 }),
+  async close(): Promise<void> {
+    const p = pool;
+    pool = null;
+    if (p) await p.destroy();
+  },
+};
