@@ -3,6 +3,7 @@ import type { Clock } from './clock';
 import type { Request } from 'express';
 import type { Config } from './config';
 import type { Logger } from './logging';
+import type { AdminSetup } from './modules/auth/admin-setup';
 import type { Orm } from './db/orm';
 import type { Mailbox } from './modules/mail/mailbox';
 import type { Mailer } from './modules/mail/mailer';
@@ -15,6 +16,8 @@ export interface AppDeps {
   clock?: Clock;
   /** The server log (pino); defaults to one on stdout at `config.logLevel`. */
   logger?: Logger;
+  /** Who becomes the first admin (start.ts shares it so the code it prints is the one that works). */
+  adminSetup?: AdminSetup;
   /** Where server faults are reported besides the log (tests collect them); the log gets only `safeError(error)`. */
   logError?: (error: unknown, req?: Request) => void;
 }
@@ -26,6 +29,7 @@ export interface AppContext {
   mailbox: Mailbox | null;
   clock: Clock;
   logger: Logger;
+  adminSetup: AdminSetup;
   /** Reports a server fault: to the log as `safeError(error)` with the request id, and to `AppDeps.logError`. */
   logError: (error: unknown, req?: Request) => void;
 }

@@ -17,6 +17,7 @@ import { securityHeaders } from './middleware/security-headers';
 import { textGuard } from './middleware/text-guard';
 import { createLogger, loggerOf, requestLogger, safeError } from './logging';
 import { configureCpuPool } from './workers/cpu-pool';
+import { AdminSetup } from './modules/auth/admin-setup';
 import { serverModules } from './modules/registry';
 import { ErrorCode } from '../shared/api/errors';
 import { HttpError } from './http-error';
@@ -32,6 +33,7 @@ export function createApp(config: Config, deps: AppDeps): Express {
     mailbox: deps.mailbox ?? null,
     clock: deps.clock ?? systemClock,
     logger,
+    adminSetup: deps.adminSetup ?? new AdminSetup(config),
     logError: (error, req) => {
       loggerOf(req, logger).error({ err: safeError(error) }, 'server fault');
       deps.logError?.(error, req);

@@ -41,6 +41,8 @@ export interface Config {
   staticDir: string;
   /** Reverse proxies in front of the server (0 = none); the rate limit then keys on the client address they forward. */
   trustProxyHops: number;
+  /** Production: the account signing up with this address becomes the first admin ('' = use the setup code). */
+  adminEmail: string;
   /** Invitations per window: per sender, per bench, and to one address of a bench. */
   inviteRateLimit: { perSender: number; perBench: number; perAddress: number; windowMs: number };
   /** Worker threads for bcrypt and corpus parsing (default: the number of cores) and the queue before 503. */
@@ -125,6 +127,7 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     AUTH_RATE_WINDOW_MS: int(15 * 60 * 1000, 1, 24 * 3600 * 1000),
     STATIC_DIR: str('dist/noisewright/browser'),
     TRUST_PROXY_HOPS: int(0, 0, 10),
+    ADMIN_EMAIL: str('').pipe(z.union([z.literal(''), z.email({ error: 'use an e-mail address' })])),
     INVITE_RATE_LIMIT: int(20, 1, 1_000_000),
     INVITE_BENCH_RATE_LIMIT: int(50, 1, 1_000_000),
     INVITE_ADDRESS_RATE_LIMIT: int(3, 1, 1_000_000),
@@ -187,6 +190,7 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     authRateLimit: { max: e.AUTH_RATE_LIMIT, windowMs: e.AUTH_RATE_WINDOW_MS },
     staticDir: e.STATIC_DIR,
     trustProxyHops: e.TRUST_PROXY_HOPS,
+    adminEmail: e.ADMIN_EMAIL.toLowerCase(),
     inviteRateLimit: {
       perSender: e.INVITE_RATE_LIMIT,
       perBench: e.INVITE_BENCH_RATE_LIMIT,

@@ -14,6 +14,8 @@ import { smtpMailer, type Mailer } from './modules/mail/mailer';
 import { seedDemoIfEmpty } from './seeders/demo-seed';
 import { createLogger } from './logging';
 import { cpuPool } from './workers/cpu-pool';
+import { AdminSetup } from './modules/auth/admin-setup';
+import { UserRepository } from './modules/users/user.repository';
 
 export interface RunningServer {
   /** Base URL of the running server, e.g. `http://127.0.0.1:43117`. */
@@ -85,7 +87,9 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
     if (!config.publicUrlSet && config.port === 0) config = { ...config, publicUrl: url };
     config = { ...config, port };
 
-    server.on('request', createApp(config, { orm, mailer, mailbox, clock, logger }));
+    const adminSetup = new AdminSetup(config);
+    adminSetup.announce(logger, await new UserRepository(orm.em.fork()).countAdmins());
+    server.on('request', createApp(config, { orm, mailer, mailbox, clock, logger, adminSetup }));
     return { url, port, config, mailbox, orm, seeded, close };
   } catch (error) {
     await close();

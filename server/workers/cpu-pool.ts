@@ -10,6 +10,7 @@ import type { CorpusOptions } from '../../shared/api/corpora';
 import { ErrorCode } from '../../shared/api/errors';
 import { HttpError } from '../http-error';
 import type { AnalysedCorpus, CpuTask } from './cpu-tasks';
+import type { PasswordStrength } from '../modules/auth/password-strength-check';
 
 export const RETRY_AFTER_SECONDS = 5;
 
@@ -71,6 +72,8 @@ export const cpuPool = {
   /** Parses and analyses an upload in a worker thread; `rows` = also return the rows to store. */
   analyse: (bytes: Uint8Array, fileName: string, options: CorpusOptions, rows: boolean) =>
     run<AnalysedCorpus>({ kind: 'analyse', bytes, fileName, options, rows }),
+  /** zxcvbn's score (0–4) and whether the password is on the common-password list. */
+  strength: (password: string, userInputs: string[]) => run<PasswordStrength>({ kind: 'strength', password, userInputs }),
   /** Threads and queue in use (for tests and the load benchmark). */
   stats: () => ({ ...settings, running: pool?.threads.length ?? 0, queued: pool?.queueSize ?? 0 }),
   async close(): Promise<void> {

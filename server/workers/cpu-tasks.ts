@@ -7,11 +7,13 @@
 import bcrypt from 'bcryptjs';
 import type { CorpusOptions } from '../../shared/api/corpora';
 import { analyseUpload, toPreview, wordRows } from '../modules/corpora/corpus-import';
+import { passwordStrength } from '../modules/auth/password-strength-check';
 
 export type CpuTask =
   | { kind: 'hash'; password: string; cost: number }
   | { kind: 'compare'; password: string; hash: string }
-  | { kind: 'analyse'; bytes: Uint8Array; fileName: string; options: CorpusOptions; rows: boolean };
+  | { kind: 'analyse'; bytes: Uint8Array; fileName: string; options: CorpusOptions; rows: boolean }
+  | { kind: 'strength'; password: string; userInputs: string[] };
 
 export interface AnalysedCorpus {
   preview: ReturnType<typeof toPreview>;
@@ -51,5 +53,7 @@ export default async function runTask(task: CpuTask): Promise<unknown> {
       return bcrypt.compareSync(task.password, task.hash);
     case 'analyse':
       return analyseCorpus(task.bytes, task.fileName, task.options, task.rows);
+    case 'strength':
+      return passwordStrength(task.password, task.userInputs);
   }
 }

@@ -50,6 +50,8 @@ export const signUpSchema = z.object({
   email: emailField,
   password: newPasswordField,
   displayName: displayNameField,
+  /** Production only: the one-time code from the server log that makes this first account the admin. */
+  setupCode: text('Send the setup code as text.').trim().max(64, 'The setup code has at most 64 characters.').optional(),
 });
 export type SignUpRequest = z.input<typeof signUpSchema>;
 

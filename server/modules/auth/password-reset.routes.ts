@@ -9,6 +9,7 @@ import { parseBody } from '../../middleware/validate';
 import { passwordResetMail } from '../mail/mail-templates';
 import { UserRepository } from '../users/user.repository';
 import { hashPassword } from './passwords';
+import { checkNewPassword } from './password-policy';
 import { PasswordResetRepository } from './password-reset.repository';
 import { hashLinkToken, newLinkToken } from './tokens';
 
@@ -35,6 +36,7 @@ export function passwordResetRoutes(ctx: AppContext): Router {
       throw gone(ErrorCode.ResetLinkUnusable, 'This reset link is no longer valid (links work once, for one hour). Ask for a new one.');
     }
     const user = reset.user;
+    await checkNewPassword(body.newPassword, user, 'newPassword');
     user.passwordHash = await hashPassword(body.newPassword, ctx.config.bcryptCost);
     user.tokenVersion += 1;
     reset.usedAt = now;
