@@ -16,7 +16,7 @@ import { apiNotFound, errorHandler } from './middleware/error-handler';
 import { securityHeaders } from './middleware/security-headers';
 import { textGuard } from './middleware/text-guard';
 import { createLogger, loggerOf, requestLogger, safeError } from './logging';
-import { configureCpuPool } from './workers/cpu-pool';
+import { cancelWorkOnClose, configureCpuPool } from './workers/cpu-pool';
 import { AdminSetup } from './modules/auth/admin-setup';
 import { serverModules } from './modules/registry';
 import { ErrorCode } from '../shared/api/errors';
@@ -42,6 +42,7 @@ export function createApp(config: Config, deps: AppDeps): Express {
   const app = express();
   app.disable('x-powered-by');
   app.use(requestLogger(logger));
+  app.use(cancelWorkOnClose);
   if (config.trustProxyHops > 0) app.set('trust proxy', config.trustProxyHops);
   app.use(securityHeaders({ https: config.publicUrl.startsWith('https:') }));
 

@@ -197,7 +197,8 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
       perAddress: e.INVITE_ADDRESS_RATE_LIMIT,
       windowMs: e.INVITE_RATE_WINDOW_MS,
     },
-    workerThreads: e.WORKER_THREADS || Math.max(1, availableParallelism()),
+    // One core stays free for the event loop.
+    workerThreads: e.WORKER_THREADS || Math.max(1, availableParallelism() - 1),
     workerQueueLimit: e.WORKER_QUEUE_LIMIT,
     logLevel: e.LOG_LEVEL as Config['logLevel'],
     debugSql: e.DEBUG_SQL,

@@ -3,9 +3,7 @@
  * whether the whole password is on the list of common passwords. Runs in the CPU pool (a check takes
  * 20–60 ms, the first one longer while the dictionaries load).
  */
-import { ZxcvbnFactory } from '@zxcvbn-ts/core';
-import * as common from '@zxcvbn-ts/language-common';
-import * as en from '@zxcvbn-ts/language-en';
+import type { ZxcvbnFactory } from '@zxcvbn-ts/core';
 
 export interface PasswordStrength {
   score: number;
@@ -15,12 +13,20 @@ export interface PasswordStrength {
 
 let factory: ZxcvbnFactory | null = null;
 
-export function passwordStrength(password: string, userInputs: string[]): PasswordStrength {
-  factory ??= new ZxcvbnFactory({
-    dictionary: { ...common.dictionary, ...en.dictionary },
-    graphs: common.adjacencyGraphs,
-    translations: en.translations,
-  });
+/** The dictionaries are loaded on the first check (a thread that only hashes never loads them). */
+export async function passwordStrength(password: string, userInputs: string[]): Promise<PasswordStrength> {
+  if (!factory) {
+    const [{ ZxcvbnFactory: Factory }, common, en] = await Promise.all([
+      import('@zxcvbn-ts/core'),
+      import('@zxcvbn-ts/language-common'),
+      import('@zxcvbn-ts/language-en'),
+    ]);
+    factory = new Factory({
+      dictionary: { ...common.dictionary, ...en.dictionary },
+      graphs: common.adjacencyGraphs,
+      translations: en.translations,
+    });
+  }
   const result = factory.check(password, userInputs);
   const whole = password.trim().toLowerCase();
   const isCommon = result.sequence.some(

@@ -11,8 +11,11 @@ import { CorpusWord } from './corpus-word.entity';
 import { Corpus } from './corpus.entity';
 import { caseInsensitiveGlob } from './word-search';
 
-/** Rows per INSERT statement (5 parameters each stays far below SQLite's parameter limit). */
-const INSERT_CHUNK = 2000;
+/**
+ * Rows per INSERT statement (5 bound parameters each stays far below SQLite's parameter limit). Small
+ * statements, one per event-loop turn: other requests are answered between them.
+ */
+const INSERT_CHUNK = 500;
 
 const SORT_COLUMNS = { word: 'word', count: '`count`', length: '`length`' } as const;
 
@@ -83,8 +86,15 @@ export class CorpusRepository {
         input.at,
       );
       await em.flush();
+      const conn = em.getConnection();
+      const tx = em.getTransactionContext();
       for (let i = 0; i < rows.length; i += INSERT_CHUNK) {
-        await em.insertMany(CorpusWord, rows.slice(i, i + INSERT_CHUNK).map((r) => ({ ...r, corpus: corpus.id })) as never);
+        const chunk = rows.slice(i, i + INSERT_CHUNK);
+        const params: unknown[] = [];
+        for (const r of chunk) params.push(corpus.id, r.word, r.count, r.split, r.length);
+        const values = chunk.map(() => '(?, ?, ?, ?, ?)').join(', ');
+        await conn.execute(`insert into corpus_words (corpus_id, word, \`count\`, split, \`length\`) values ${values}`, params, 'run', tx);
+        await new Promise((r) => setImmediate(r));
       }
       return corpus;
     });
@@ -116,7 +126,9 @@ export class CorpusRepository {
       params.push(caseInsensitiveGlob(q.q));
     }
     const conn = this.em.getConnection();
-    const total: { n: number }[] = await conn.execute(`select count(*) as n from corpus_words where ${where.join(' and ')}`, params);
+    // Without filters the total is the corpus's number of word types (stored with it): no count over every row.
+    const total: { n: number }[] =
+      where.length === 1 ? [{ n: corpus.types }] : await conn.execute(`select count(*) as n from corpus_words where ${where.join(' and ')}`, params);
     const dir = q.dir === 'asc' ? 'asc' : 'desc';
     const order = q.sort === 'word' ? `word ${dir}` : `${SORT_COLUMNS[q.sort]} ${dir}, word asc`;
     const items: CorpusWordRow[] = await conn.execute(
