@@ -15,6 +15,7 @@ import { loadBench } from './middleware/bench-access';
 import { apiNotFound, errorHandler } from './middleware/error-handler';
 import { securityHeaders } from './middleware/security-headers';
 import { textGuard } from './middleware/text-guard';
+import { requestGate } from './middleware/request-gate';
 import { createLogger, loggerOf, requestLogger, safeError } from './logging';
 import { cancelWorkOnClose, configureCpuPool } from './workers/cpu-pool';
 import { AdminSetup } from './modules/auth/admin-setup';
@@ -48,6 +49,7 @@ export function createApp(config: Config, deps: AppDeps): Express {
 
   const api = Router();
   api.use(express.json({ limit: config.jsonBodyLimitBytes }));
+  api.use(requestGate(config.apiConcurrency, (path) => path === '/health' || path === '/config'));
   api.use(textGuard);
   api.use((_req, _res, next) => RequestContext.create(ctx.orm.em, next));
   api.use((_req, res, next) => {

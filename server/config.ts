@@ -48,6 +48,8 @@ export interface Config {
   /** Worker threads for bcrypt and corpus parsing (default: the number of cores) and the queue before 503. */
   workerThreads: number;
   workerQueueLimit: number;
+  /** API requests worked on at once (the rest wait in line; health and config skip the line). */
+  apiConcurrency: number;
   /** pino level of the server log (request lines are `info`); `silent` in tests unless LOG_LEVEL is set. */
   logLevel: 'fatal' | 'error' | 'warn' | 'info' | 'debug' | 'trace' | 'silent';
   /** Log every SQL statement (placeholders only, never values) at debug level; off unless DEBUG_SQL. */
@@ -134,6 +136,7 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     INVITE_RATE_WINDOW_MS: int(3600 * 1000, 1, 24 * 3600 * 1000),
     WORKER_THREADS: int(0, 0, 256),
     WORKER_QUEUE_LIMIT: int(200, 1, 100_000),
+    API_CONCURRENCY: int(8, 1, 10_000),
     LOG_LEVEL: z
       .enum(['', 'fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent'], { error: 'use fatal, error, warn, info, debug, trace or silent' })
       .optional()
@@ -200,6 +203,7 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     // One core stays free for the event loop.
     workerThreads: e.WORKER_THREADS || Math.max(1, availableParallelism() - 1),
     workerQueueLimit: e.WORKER_QUEUE_LIMIT,
+    apiConcurrency: e.API_CONCURRENCY,
     logLevel: e.LOG_LEVEL as Config['logLevel'],
     debugSql: e.DEBUG_SQL,
   };
