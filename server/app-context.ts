@@ -1,6 +1,9 @@
 /** What route factories receive: configuration and the services the app was built with. */
 import type { Clock } from './clock';
+import type { Request } from 'express';
 import type { Config } from './config';
+import type { Logger } from './logging';
+import type { AdminSetup } from './modules/auth/admin-setup';
 import type { Orm } from './db/orm';
 import type { Mailbox } from './modules/mail/mailbox';
 import type { Mailer } from './modules/mail/mailer';
@@ -13,8 +16,12 @@ export interface AppDeps {
   /** Captured mail (development); `GET /api/admin/mail` reads it. Null when nothing is captured. */
   mailbox?: Mailbox | null;
   clock?: Clock;
-  /** Where server faults are reported; defaults to console.error. */
-  logError?: (error: unknown) => void;
+  /** The server log (pino); defaults to one on stdout at `config.logLevel`. */
+  logger?: Logger;
+  /** Who becomes the first admin (start.ts shares it so the code it prints is the one that works). */
+  adminSetup?: AdminSetup;
+  /** Where server faults are reported besides the log (tests collect them); the log gets only `safeError(error)`. */
+  logError?: (error: unknown, req?: Request) => void;
   /** The queue of runner runs; defaults to the embedded one (required when QUEUE_URL is set). */
   runQueue?: RunQueue;
   /** The bus run changes are published on (server-sent events); defaults to a new one. */
@@ -27,7 +34,10 @@ export interface AppContext {
   mailer: Mailer;
   mailbox: Mailbox | null;
   clock: Clock;
-  logError: (error: unknown) => void;
+  logger: Logger;
+  adminSetup: AdminSetup;
+  /** Reports a server fault: to the log as `safeError(error)` with the request id, and to `AppDeps.logError`. */
+  logError: (error: unknown, req?: Request) => void;
   runQueue: RunQueue;
   runEvents: RunEventBus;
 }

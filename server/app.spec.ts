@@ -173,7 +173,8 @@ describe('rate limit behind a reverse proxy', () => {
 describe('in production', () => {
   let t: TestApp;
   beforeAll(async () => {
-    t = await createTestApp({ NODE_ENV: 'production', BCRYPT_COST: '10', PUBLIC_URL: 'https://workbench.test' });
+    // In production the first admin is named by ADMIN_EMAIL (or the setup code from the log).
+    t = await createTestApp({ NODE_ENV: 'production', BCRYPT_COST: '10', PUBLIC_URL: 'https://workbench.test', ADMIN_EMAIL: 'prod.admin@example.org' });
   });
   afterAll(async () => t.close());
 

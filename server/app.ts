@@ -14,6 +14,11 @@ import { requireAuth } from './middleware/auth';
 import { loadBench } from './middleware/bench-access';
 import { apiNotFound, errorHandler } from './middleware/error-handler';
 import { securityHeaders } from './middleware/security-headers';
+import { textGuard } from './middleware/text-guard';
+import { requestGate } from './middleware/request-gate';
+import { createLogger, loggerOf, requestLogger, safeError } from './logging';
+import { cancelWorkOnClose, configureCpuPool } from './workers/cpu-pool';
+import { AdminSetup } from './modules/auth/admin-setup';
 import { serverModules } from './modules/registry';
 import { EmbeddedRunQueue } from './modules/runners/queue/run-queue';
 import { RunEventBus } from './modules/runners/run-events';
@@ -23,23 +28,35 @@ import './request-state';
 
 export function createApp(config: Config, deps: AppDeps): Express {
   if (config.queueUrl && !deps.runQueue) throw new Error('createApp: QUEUE_URL is set; pass the BullMQ run queue (createRunQueue) in deps.runQueue.');
+  const logger = deps.logger ?? createLogger(config.logLevel);
+  configureCpuPool({ threads: config.workerThreads, queueLimit: config.workerQueueLimit });
   const ctx: AppContext = {
     config,
     orm: deps.orm,
     mailer: deps.mailer,
     mailbox: deps.mailbox ?? null,
     clock: deps.clock ?? systemClock,
-    logError: deps.logError ?? ((error) => console.error(error)),
+    logger,
+    adminSetup: deps.adminSetup ?? new AdminSetup(config),
+    logError: (error, req) => {
+      loggerOf(req, logger).error({ err: safeError(error) }, 'server fault');
+      deps.logError?.(error, req);
+    },
     runQueue: deps.runQueue ?? new EmbeddedRunQueue(),
     runEvents: deps.runEvents ?? new RunEventBus(),
   };
   const app = express();
   app.disable('x-powered-by');
+  app.use(requestLogger(logger));
+  app.use(cancelWorkOnClose);
   if (config.trustProxyHops > 0) app.set('trust proxy', config.trustProxyHops);
   app.use(securityHeaders({ https: config.publicUrl.startsWith('https:') }));
 
   const api = Router();
   api.use(express.json({ limit: config.jsonBodyLimitBytes }));
+  // Event streams stay open for as long as a page watches: they must not hold a place in the line.
+  api.use(requestGate(config.apiConcurrency, (path) => path === '/health' || path === '/config' || /^\/benches\/[^/]+\/(runs\/[^/]+\/)?events$/.test(path)));
+  api.use(textGuard);
   api.use((_req, _res, next) => RequestContext.create(ctx.orm.em, next));
   api.use((_req, res, next) => {
     res.set('Cache-Control', 'no-store');

@@ -45,6 +45,19 @@ export interface Config {
   queueUrl: string | null;
   /** Runner threads the server starts itself (0 = none). Default: cores − 1, at least 1 (0 under NODE_ENV=test). */
   runnerThreads: number;
+  /** Production: the account signing up with this address becomes the first admin ('' = use the setup code). */
+  adminEmail: string;
+  /** Invitations per window: per sender, per bench, and to one address of a bench. */
+  inviteRateLimit: { perSender: number; perBench: number; perAddress: number; windowMs: number };
+  /** Worker threads for bcrypt and corpus parsing (default: the number of cores) and the queue before 503. */
+  workerThreads: number;
+  workerQueueLimit: number;
+  /** API requests worked on at once (the rest wait in line; health and config skip the line). */
+  apiConcurrency: number;
+  /** pino level of the server log (request lines are `info`); `silent` in tests unless LOG_LEVEL is set. */
+  logLevel: 'fatal' | 'error' | 'warn' | 'info' | 'debug' | 'trace' | 'silent';
+  /** Log every SQL statement (placeholders only, never values) at debug level; off unless DEBUG_SQL. */
+  debugSql: boolean;
 }
 
 export class ConfigError extends Error {
@@ -122,6 +135,19 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     TRUST_PROXY_HOPS: int(0, 0, 10),
     QUEUE_URL: str('').pipe(z.union([z.literal(''), z.string().regex(/^rediss?:\/\/\S+$/, 'use a Redis URL such as redis://127.0.0.1:6379')])),
     RUNNER_THREADS: int(nodeEnv === 'test' ? 0 : Math.max(1, availableParallelism() - 1), 0, 256),
+    ADMIN_EMAIL: str('').pipe(z.union([z.literal(''), z.email({ error: 'use an e-mail address' })])),
+    INVITE_RATE_LIMIT: int(20, 1, 1_000_000),
+    INVITE_BENCH_RATE_LIMIT: int(50, 1, 1_000_000),
+    INVITE_ADDRESS_RATE_LIMIT: int(3, 1, 1_000_000),
+    INVITE_RATE_WINDOW_MS: int(3600 * 1000, 1, 24 * 3600 * 1000),
+    WORKER_THREADS: int(0, 0, 256),
+    WORKER_QUEUE_LIMIT: int(200, 1, 100_000),
+    API_CONCURRENCY: int(8, 1, 10_000),
+    LOG_LEVEL: z
+      .enum(['', 'fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent'], { error: 'use fatal, error, warn, info, debug, trace or silent' })
+      .optional()
+      .transform((v) => (v ? v : nodeEnv === 'test' ? 'silent' : 'info')),
+    DEBUG_SQL: bool(false),
   });
   const parsed = schema.safeParse(env);
   if (!parsed.success) {
@@ -175,5 +201,18 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     trustProxyHops: e.TRUST_PROXY_HOPS,
     queueUrl: e.QUEUE_URL || null,
     runnerThreads: e.RUNNER_THREADS,
+    adminEmail: e.ADMIN_EMAIL.toLowerCase(),
+    inviteRateLimit: {
+      perSender: e.INVITE_RATE_LIMIT,
+      perBench: e.INVITE_BENCH_RATE_LIMIT,
+      perAddress: e.INVITE_ADDRESS_RATE_LIMIT,
+      windowMs: e.INVITE_RATE_WINDOW_MS,
+    },
+    // One core stays free for the event loop.
+    workerThreads: e.WORKER_THREADS || Math.max(1, availableParallelism() - 1),
+    workerQueueLimit: e.WORKER_QUEUE_LIMIT,
+    apiConcurrency: e.API_CONCURRENCY,
+    logLevel: e.LOG_LEVEL as Config['logLevel'],
+    debugSql: e.DEBUG_SQL,
   };
 }

@@ -17,6 +17,10 @@ import { createRunQueue } from './modules/runners/queue/create-run-queue';
 import { RunEventBus } from './modules/runners/run-events';
 import { ensureQueuedJobs, prepareEmbeddedRunner, releaseEmbeddedRuns } from './modules/runners/runner-startup';
 import { seedDemoIfEmpty } from './seeders/demo-seed';
+import { createLogger } from './logging';
+import { cpuPool } from './workers/cpu-pool';
+import { AdminSetup } from './modules/auth/admin-setup';
+import { UserRepository } from './modules/users/user.repository';
 
 export interface RunningServer {
   /** Base URL of the running server, e.g. `http://127.0.0.1:43117`. */
@@ -47,7 +51,9 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
   };
 
   try {
-    const orm = await openDatabase(config.databasePath);
+    const logger = createLogger(config.logLevel);
+    cleanups.push(() => cpuPool.close());
+    const orm = await openDatabase(config.databasePath, { debugSql: config.debugSql, logger: (message) => logger.debug({ sql: message }, 'sql') });
     cleanups.push(() => orm.close(true));
     const seeded = config.seedDemo ? await seedDemoIfEmpty(orm, config, clock) : false;
 
@@ -104,7 +110,9 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
     if (!config.publicUrlSet && config.port === 0) config = { ...config, publicUrl: url };
     config = { ...config, port };
 
-    server.on('request', createApp(config, { orm, mailer, mailbox, clock, runQueue, runEvents }));
+    const adminSetup = new AdminSetup(config);
+    adminSetup.announce(logger, await new UserRepository(orm.em.fork()).countAdmins());
+    server.on('request', createApp(config, { orm, mailer, mailbox, clock, logger, adminSetup, runQueue, runEvents }));
 
     let runnerThreads = 0;
     if (embedded) {

@@ -7,6 +7,7 @@ import { Migration20261202000000Foundation } from '../migrations/Migration202612
 import { Migration20261202024511Corpora } from '../migrations/Migration20261202024511_corpora';
 import { Migration20261202024709Runs } from '../migrations/Migration20261202024709_runs';
 import { Migration20261202033904EvaluationsGridsReports } from '../migrations/Migration20261202033904_evaluations_grids_reports';
+import { Migration20261205093700HWordOrderIndex } from '../migrations/Migration20261205093700_h_word_order_index';
 import { Migration20261205102200RunnersB } from '../migrations/Migration20261205102200_runners_b';
 import { Migration20261205103000SettingsKeysG } from '../migrations/Migration20261205103000_settings_keys_g';
 
@@ -15,6 +16,7 @@ export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261202024511_corpora', class: Migration20261202024511Corpora },
   { name: 'Migration20261202024709_runs', class: Migration20261202024709Runs },
   { name: 'Migration20261202033904_evaluations_grids_reports', class: Migration20261202033904EvaluationsGridsReports },
+  { name: 'Migration20261205093700_h_word_order_index', class: Migration20261205093700HWordOrderIndex },
   { name: 'Migration20261205102200_runners_b', class: Migration20261205102200RunnersB },
   { name: 'Migration20261205103000_settings_keys_g', class: Migration20261205103000SettingsKeysG },
 ];

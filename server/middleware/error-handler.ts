@@ -1,6 +1,6 @@
 /** The one error middleware (mounted last) and the JSON 404 for unknown API paths. */
 import { UniqueConstraintViolationException } from '@mikro-orm/core';
-import type { ErrorRequestHandler, RequestHandler } from 'express';
+import type { ErrorRequestHandler, Request, RequestHandler } from 'express';
 import { ErrorCode, type ApiErrorBody } from '../../shared/api/errors';
 import { HttpError } from '../http-error';
 
@@ -26,8 +26,8 @@ export const apiNotFound: RequestHandler = (req, _res, next) => {
   next(new HttpError(404, ErrorCode.NotFound, `There is no API endpoint ${req.method} ${req.originalUrl.split('?')[0]}.`));
 };
 
-export function errorHandler(logError: (error: unknown) => void): ErrorRequestHandler {
-  return (err, _req, res, next) => {
+export function errorHandler(logError: (error: unknown, req?: Request) => void): ErrorRequestHandler {
+  return (err, req, res, next) => {
     if (res.headersSent) {
       next(err);
       return;
@@ -39,7 +39,9 @@ export function errorHandler(logError: (error: unknown) => void): ErrorRequestHa
           ? new HttpError(409, ErrorCode.Conflict, 'Someone made the same change at the same moment. Reload the page and try again.')
           : bodyParserError(err);
     const error = known ?? new HttpError(500, ErrorCode.Internal, 'Something went wrong on the server. Try again; if it keeps happening, tell your admin.');
-    if (!known) logError(err);
+    if (!known) logError(err, req);
+    const retryAfter = (error as { retryAfterSeconds?: unknown }).retryAfterSeconds;
+    if (typeof retryAfter === 'number') res.set('Retry-After', String(retryAfter));
     const body: ApiErrorBody = { error: { code: error.code, message: error.message } };
     if (error.fields) body.error.fields = error.fields;
     res.status(error.status).json(body);

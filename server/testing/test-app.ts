@@ -55,6 +55,7 @@ export function testConfig(dir: string, env: Record<string, string> = {}): Confi
     AUTH_RATE_LIMIT: '10000',
     PUBLIC_URL: 'http://workbench.test',
     STATIC_DIR: join(dir, 'no-client-build'),
+    LOG_LEVEL: 'silent',
     ...env,
   });
 }

@@ -3,6 +3,7 @@
  * and the DTOs of `/api/benches/:benchId/corpora`. See DEVELOPERS.md, "REST API".
  */
 import { z } from 'zod';
+import { safeText } from './safe-text';
 import type { CorpusFormat, Problem, ProblemCode } from '../data/corpus-parse';
 import type { CorpusStats } from '../data/corpus-stats';
 import type { NormaliseReport } from '../data/normalise';
@@ -45,7 +46,7 @@ export const normaliseSettingsSchema = z.object({
   nfc: z.boolean({ error: 'Send nfc as true or false.' }).default(true),
   stripDiacritics: z.boolean({ error: 'Send stripDiacritics as true or false.' }).default(false),
   /** Allowed characters after normalisation; empty = every character is allowed. */
-  allowedChars: z.string({ error: 'Send the allowed characters as text.' }).max(1000, 'List at most 1,000 allowed characters.').default(''),
+  allowedChars: safeText('Send the allowed characters as text.').max(1000, 'List at most 1,000 allowed characters.').default(''),
   outsideAlphabet: z
     .enum(['drop-word', 'drop-char', 'keep'], { error: 'Choose what happens to other characters: drop-word, drop-char or keep.' })
     .default('drop-word'),
@@ -68,14 +69,12 @@ export const corpusOptionsSchema = z.object({
 export type CorpusOptionsInput = z.input<typeof corpusOptionsSchema>;
 export type CorpusOptions = z.output<typeof corpusOptionsSchema>;
 
-export const corpusNameField = z
-  .string({ error: 'Give the corpus a name.' })
+export const corpusNameField = safeText('Give the corpus a name.')
   .trim()
   .min(1, 'Give the corpus a name.')
   .max(CORPUS_NAME_MAX, `Use a corpus name of at most ${CORPUS_NAME_MAX} characters.`);
 
-export const corpusDescriptionField = z
-  .string({ error: 'Send the description as text.' })
+export const corpusDescriptionField = safeText('Send the description as text.', { lineBreaks: true })
   .trim()
   .max(CORPUS_DESCRIPTION_MAX, `Use a description of at most ${CORPUS_DESCRIPTION_MAX} characters.`);
 
@@ -99,7 +98,7 @@ export type WordSort = (typeof WORD_SORTS)[number];
 export const wordQuerySchema = z.object({
   sort: z.enum(WORD_SORTS, { error: 'Sort by word, count or length.' }).default('count'),
   dir: z.enum(['asc', 'desc'], { error: 'Give dir as asc or desc.' }).default('desc'),
-  q: z.string().max(100, 'Search for at most 100 characters.').default(''),
+  q: safeText('Send the search as text.').max(100, 'Search for at most 100 characters.').default(''),
   split: z.enum(['', 'train', 'validation', 'test'], { error: 'Filter by split: train, validation or test.' }).default(''),
   offset: z.coerce.number({ error: 'Give offset as a whole number.' }).int('Give offset as a whole number.').min(0, 'Give an offset of 0 or more.').default(0),
   limit: z.coerce.number({ error: 'Give limit as a whole number.' }).int('Give limit as a whole number.').min(1, 'Give a limit of at least 1.').max(500, 'Give a limit of at most 500.').default(50),

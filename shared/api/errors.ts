@@ -46,6 +46,8 @@ export const ErrorCode = {
   ValidationFailed: 'VALIDATION_FAILED',
   /** 429: too many attempts in a short time. */
   RateLimited: 'RATE_LIMITED',
+  /** 503: the server's worker queue is full; the answer carries `Retry-After` (seconds). */
+  ServerBusy: 'SERVER_BUSY',
   /** 500: a fault on the server. */
   Internal: 'INTERNAL_ERROR',
   /** 401: the runner token was revoked by an admin (runner routes, see shared/api/runner-jobs.ts). */

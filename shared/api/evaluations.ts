@@ -6,6 +6,7 @@
  * only types are imported from there, so this file pulls no model code into a page.
  */
 import { z } from 'zod';
+import { safeText } from './safe-text';
 import type { EvaluationSettings, ExactEvaluation, SsmEvaluation } from '../eval/evaluation-report';
 
 const whole = (name: string, min: number, max: number) =>
@@ -18,7 +19,7 @@ const whole = (name: string, min: number, max: number) =>
 /** A finite number (JSON turns NaN and infinities into null, which fails here too). */
 const fin = z.number({ error: 'Every figure must be a finite number.' }).refine(Number.isFinite, 'Every figure must be a finite number.');
 const count = z.number().int().min(0);
-const word = z.string().max(400);
+const word = safeText().max(400);
 
 /**
  * What the user chose for one evaluation. `K`, `repeats`: the tight held-out estimate; `S`: prior trajectories
@@ -40,7 +41,7 @@ export const evaluationSettingsSchema = z
     maxHeldOut: whole('a number of held-out words', 1, 1_000_000).default(500),
     tMax: whole('Tmax', 1, 200).default(24),
     particles: whole('a number of particles', 1, 100_000).default(512),
-    prefixes: z.array(z.string().max(60, 'Keep each prefix to 60 characters.'), { error: 'Give prefixes as a list of strings.' })
+    prefixes: z.array(safeText().max(60, 'Keep each prefix to 60 characters.'), { error: 'Give prefixes as a list of strings.' })
       .max(20, 'Give at most 20 prefixes.').default([]),
     seed: whole('a seed', 0, 2 ** 31 - 1).default(1),
     baselineRunId: z.string().uuid('Choose a baseline run of this bench.').nullable().default(null),
@@ -122,7 +123,7 @@ const ssmResultsSchema = z.object({
   noiseMap: z.object({
     dims: z.tuple([count, count]),
     from: z.array(fin),
-    points: z.array(z.object({ noise: z.tuple([fin, fin]), state: z.tuple([fin, fin]), char: z.string().max(8).nullable(), prob: fin })),
+    points: z.array(z.object({ noise: z.tuple([fin, fin]), state: z.tuple([fin, fin]), char: safeText().max(8).nullable(), prob: fin })),
   }).nullable(),
   baselines: baselinesSchema,
 });

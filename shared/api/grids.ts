@@ -7,6 +7,7 @@
  * state sizes 8/16/32) whose verdict table the server computes from the runs' stored summaries.
  */
 import { z } from 'zod';
+import { safeText } from './safe-text';
 import { runPlacementSchema, type RunPlacement } from './runners';
 import { flowStackSchema, RUN_FAMILIES, type RunDto, type RunFamily, type RunStatus } from './runs';
 
@@ -29,7 +30,7 @@ export const GRID_FIGURE_LABELS: Readonly<Record<GridFigure, { label: string; un
 /** An axis key is a path into the run settings: `model.<field>` or `training.<field>` (e.g. `model.stateSize`). */
 export const GRID_AXIS_KEY = /^(model|training)\.[a-zA-Z][a-zA-Z0-9]{0,39}$/;
 
-export const gridAxisValueSchema = z.union([z.number().refine(Number.isFinite, 'Give finite numbers.'), z.string().max(60), z.boolean(), flowStackSchema], {
+export const gridAxisValueSchema = z.union([z.number().refine(Number.isFinite, 'Give finite numbers.'), safeText().max(60), z.boolean(), flowStackSchema], {
   error: 'Give each axis value as a number, a word, true/false or a flow (a list of layers).',
 });
 export type GridAxisValue = z.output<typeof gridAxisValueSchema>;
@@ -88,7 +89,7 @@ export function gridCellLabel(axes: readonly { key: string; values: readonly unk
   }).join(', ');
 }
 
-const gridName = z.string({ error: 'Give the grid a name.' }).trim().min(1, 'Give the grid a name.').max(120, 'Use a grid name of at most 120 characters.');
+const gridName = safeText('Give the grid a name.').trim().min(1, 'Give the grid a name.').max(120, 'Use a grid name of at most 120 characters.');
 
 /**
  * `POST /grids`. `baseSettings` are run settings of the family (`{ model, training, split? }`); each cell

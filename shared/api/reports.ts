@@ -7,6 +7,7 @@
  * unsaved page exports the same rows.
  */
 import { z } from 'zod';
+import { safeText } from './safe-text';
 import type { EvaluationDto } from './evaluations';
 import { GRID_FIGURE_LABELS, type GridDto, type LearnabilityVerdict } from './grids';
 import type { RunDto } from './runs';
@@ -22,7 +23,7 @@ export const MAX_COMPARED_RUNS = 16;
 export const createReportSchema = z
   .object({
     kind: z.enum(REPORT_KINDS, { error: 'Choose what the report holds: evaluation, comparison or grid.' }),
-    title: z.string({ error: 'Give the report a title.' }).trim().min(1, 'Give the report a title.').max(160, 'Use a title of at most 160 characters.'),
+    title: safeText('Give the report a title.').trim().min(1, 'Give the report a title.').max(160, 'Use a title of at most 160 characters.'),
     sourceIds: z.array(z.string().uuid('Choose items of this bench.'), { error: 'Give sourceIds as a list of ids.' })
       .min(1, 'Choose at least one item for the report.')
       .max(MAX_COMPARED_RUNS, `Choose at most ${MAX_COMPARED_RUNS} items.`),

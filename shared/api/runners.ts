@@ -9,6 +9,7 @@
  *  - `runners`: the server queues it and a runner trains it; the tab only watches (server-sent events).
  */
 import { z } from 'zod';
+import { safeText } from './safe-text';
 
 export const RUN_PLACEMENTS = ['tab', 'runners'] as const;
 export type RunPlacement = (typeof RUN_PLACEMENTS)[number];
@@ -31,8 +32,7 @@ export type RunControlRequest = z.input<typeof runControlSchema>;
 /** `POST /api/runners` (admin): a new runner token; the token is in the answer once and stored only hashed. */
 export const createRunnerSchema = z
   .object({
-    name: z
-      .string({ error: 'Name the runner, e.g. the machine it runs on.' })
+    name: safeText('Name the runner, e.g. the machine it runs on.')
       .trim()
       .min(1, 'Name the runner, e.g. the machine it runs on.')
       .max(80, 'Use a runner name of at most 80 characters.'),

@@ -6,6 +6,7 @@
  */
 import { z } from 'zod';
 import { FLOW_KIND_NAMES, KN_DISCOUNT_RANGE, MODEL_FAMILIES, SETTING_LIMITS } from '../model/settings-rules';
+import { safeText } from './safe-text';
 import { runPlacementSchema, type RunLiveProgress, type RunPlacement } from './runners';
 
 export const RUN_FAMILIES = MODEL_FAMILIES;
@@ -141,8 +142,7 @@ export const splitSchema = z
   })
   .strict();
 
-const runName = z
-  .string({ error: 'Give the run a name.' })
+const runName = safeText('Give the run a name.')
   .trim()
   .min(1, 'Give the run a name.')
   .max(120, 'Use a run name of at most 120 characters.');
@@ -189,11 +189,11 @@ export const runSummarySchema = z
     bestValidationStep: whole('the step of the best validation bound', 0, 1e9).nullable(),
     wordsPerSecond: z.number().min(0, 'Give words per second of 0 or more.').max(1e9),
     parameterCount: whole('a parameter count', 0, 1e10),
-    backend: z.string().trim().min(1).max(40, 'Name the backend in at most 40 characters.'),
+    backend: safeText('Name the backend.').trim().min(1).max(40, 'Name the backend in at most 40 characters.'),
     simd: z.boolean(),
     threads: whole('a thread count', 1, 256),
     /** The latest fresh samples, so a reloaded page can show them again. */
-    lastSamples: z.array(z.string().max(64, 'Keep each sample to 64 characters.'), { error: 'Send the samples as a list of words.' }).max(30, 'Send at most 30 samples.'),
+    lastSamples: z.array(safeText('Send each sample as text.').max(64, 'Keep each sample to 64 characters.'), { error: 'Send the samples as a list of words.' }).max(30, 'Send at most 30 samples.'),
   })
   .partial()
   .strict();
@@ -203,7 +203,7 @@ export const updateRunSchema = z
   .object({
     name: runName.optional(),
     status: z.enum(RUN_STATUSES, { error: `Choose a status: ${RUN_STATUSES.join(', ')}.` }).optional(),
-    statusReason: z.string().trim().max(500, 'Keep the reason to 500 characters.').nullable().optional(),
+    statusReason: safeText('Say why in statusReason.').trim().max(500, 'Keep the reason to 500 characters.').nullable().optional(),
     stepsDone: whole('the steps done', 0, 1e9).optional(),
     summary: runSummarySchema.optional(),
   })
@@ -229,7 +229,7 @@ export const listRunsQuerySchema = z.object({
   family: commaList.pipe(z.array(z.enum(RUN_FAMILIES, { error: `Filter by family ${RUN_FAMILIES.join(', ')}.` }))),
   status: commaList.pipe(z.array(z.enum(RUN_STATUSES, { error: `Filter by status ${RUN_STATUSES.join(', ')}.` }))),
   archived: z.enum(['false', 'true', 'all'], { error: 'Give archived as false, true or all.' }).default('false'),
-  q: z.string().trim().max(120).optional(),
+  q: safeText('Send the search as text.').trim().max(120, 'Search for at most 120 characters.').optional(),
   sort: z.enum(RUN_SORT_FIELDS, { error: `Sort by ${RUN_SORT_FIELDS.join(', ')}.` }).default('createdAt'),
   dir: z.enum(['asc', 'desc'], { error: 'Give dir as asc or desc.' }).default('desc'),
   limit: z.coerce.number({ error: 'Give limit as a whole number.' }).int('Give limit as a whole number.').min(1, 'Give a limit of at least 1.').max(200, 'Give a limit of at most 200.').default(25),
@@ -264,7 +264,7 @@ export const truncateMetricsQuerySchema = z.object({
 export const checkpointUploadQuerySchema = z.object({
   reason: z.enum(['auto', 'stop', 'manual'], { error: 'Give reason as auto, stop or manual.' }).default('manual'),
   /** The training or validation bound at this step in bits per character (leave out when unknown). */
-  boundBitsPerChar: z.coerce.number({ error: 'Give boundBitsPerChar as a number.' }).refine(Number.isFinite, 'Give a finite bound.').optional(),
+  boundBitsPerChar: z.coerce.number({ error: 'Give boundBitsPerChar as a number.' }).refine(Number.isFinite, 'Give a finite bound.').refine((v) => v >= 0, 'Give a bound of 0 or more (bits per character are never negative).').optional(),
 });
 
 export interface RunDto {

@@ -3,16 +3,18 @@
  * Each message says what to fix.
  */
 import { z } from 'zod';
+import { safeText, type TextAllowance } from './safe-text';
 import { ROLES } from './types';
+
+export { safeText, unsafeTextProblem, type TextAllowance } from './safe-text';
 
 /** bcrypt only looks at the first 72 bytes of a password, so we refuse longer ones instead of truncating. */
 export const PASSWORD_MIN_LENGTH = 8;
 export const PASSWORD_MAX_BYTES = 72;
 
-function text(requiredMessage: string) {
-  return z.string({
-    error: (issue) => (issue.input === undefined || issue.input === null ? requiredMessage : 'Send this field as text.'),
-  });
+/** Every text field follows the one text rule (safe-text.ts): no control characters, no direction controls. */
+function text(requiredMessage: string, allow: TextAllowance = {}) {
+  return safeText(requiredMessage, allow);
 }
 
 export const emailField = text('Enter an e-mail address.')
@@ -40,7 +42,7 @@ export const benchNameField = text('Give the bench a name.')
   .min(1, 'Give the bench a name.')
   .max(80, 'Use a bench name of at most 80 characters.');
 
-export const benchDescriptionField = text('Send the description as text.')
+export const benchDescriptionField = text('Send the description as text.', { lineBreaks: true })
   .trim()
   .max(500, 'Use a description of at most 500 characters.');
 
@@ -48,6 +50,8 @@ export const signUpSchema = z.object({
   email: emailField,
   password: newPasswordField,
   displayName: displayNameField,
+  /** Production only: the one-time code from the server log that makes this first account the admin. */
+  setupCode: text('Send the setup code as text.').trim().max(64, 'The setup code has at most 64 characters.').optional(),
 });
 export type SignUpRequest = z.input<typeof signUpSchema>;
 

@@ -26,7 +26,20 @@ export interface RecordsResult {
   columns: number;
 }
 
-const INTEGER = /^\+?\d+$/;
+const INTEGER = /^\d+$/;
+const PLUS_INTEGER = /^\+\d+$/;
+/** Characters that do not show: zero-width space / non-joiner / joiner, word joiner, soft hyphen, LRM / RLM. */
+const INVISIBLE = /[\u200b\u200c\u200d\u2060\u00ad\u200e\u200f]/;
+const INVISIBLE_NAMES: Record<string, string> = {
+  '\u200b': 'zero-width space',
+  '\u200c': 'zero-width non-joiner',
+  '\u200d': 'zero-width joiner',
+  '\u2060': 'word joiner',
+  '\u00ad': 'soft hyphen',
+  '\u200e': 'left-to-right mark',
+  '\u200f': 'right-to-left mark',
+};
+const BIDI_CONTROL = /[\u202a-\u202e\u2066-\u2069]/;
 const CONTROL = /[\u0000-\u001f\u007f-\u009f]/;
 const EDGE_BLANK = /^[ \t\u00a0]|[ \t\u00a0]$/;
 const NEGATIVE_INTEGER = /^-\d+$/;
@@ -34,6 +47,10 @@ const NUMBERISH = /^[+-]?(\d[\d,_ ]*)?(\.\d*)?([eE][+-]?\d+)?$/;
 
 /** Parses a count field; returns the count or adds an error and returns null. */
 function parseCount(text: string, line: number, word: string, problems: ProblemList): number | null {
+  if (PLUS_INTEGER.test(text)) {
+    problems.error(line, 'count-not-integer', `Line ${line}: the count ${quote(text)} of ${quote(word)} starts with "+"; write the count without a sign.`);
+    return null;
+  }
   if (INTEGER.test(text)) {
     const value = Number(text);
     if (!Number.isSafeInteger(value)) {
@@ -65,6 +82,20 @@ function checkWord(word: string, line: number, problems: ProblemList): boolean {
   const control = word.match(CONTROL); // general category Cc is exactly U+0000–001F and U+007F–009F
   if (control) {
     problems.error(line, 'control-character', `Line ${line}: ${quote(word)} contains the control character ${describeChar(control[0])}; remove it.`);
+    return false;
+  }
+  if (word.includes('\ufeff')) {
+    problems.error(line, 'bom-in-line', `Line ${line}: ${quote(word)} has a byte-order mark inside the line (U+FEFF); remove it (it is only allowed at the very start of the file).`);
+    return false;
+  }
+  const bidi = word.match(BIDI_CONTROL);
+  if (bidi) {
+    problems.error(line, 'direction-control', `Line ${line}: ${quote(word)} contains the direction control ${describeChar(bidi[0])}; remove it (it makes the word read differently from what it holds).`);
+    return false;
+  }
+  const invisible = word.match(INVISIBLE);
+  if (invisible) {
+    problems.error(line, 'invisible-character', `Line ${line}: ${quote(word)} contains an invisible ${INVISIBLE_NAMES[invisible[0]]} (${describeChar(invisible[0])}); remove it, or the word is stored apart from the same word without it.`);
     return false;
   }
   if (/\s/u.test(word)) {

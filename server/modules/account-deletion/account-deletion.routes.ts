@@ -3,7 +3,7 @@ import { Router } from 'express';
 import { deleteAccountSchema } from '../../../shared/api/schemas';
 import type { AppContext } from '../../app-context';
 import { validationFailed } from '../../http-error';
-import { authRateLimit } from '../../middleware/rate-limit';
+import { authRateLimit, perKeyRateLimit } from '../../middleware/rate-limit';
 import { parseBody } from '../../middleware/validate';
 import { currentUser } from '../../request-state';
 import { verifyPassword } from '../auth/passwords';
@@ -15,7 +15,8 @@ export function accountDeletionRoutes(ctx: AppContext): Router {
   const router = Router();
 
   // Rate limited like the other routes that check a password: a stolen token must not turn into password guessing.
-  router.delete('/', authRateLimit(ctx.config.authRateLimit), async (req, res) => {
+  const perPerson = perKeyRateLimit(ctx.config.authRateLimit, (req) => req.authUser?.id ?? null, 'attempts to delete your account');
+  router.delete('/', perPerson, authRateLimit(ctx.config.authRateLimit), async (req, res) => {
     const body = parseBody(deleteAccountSchema, req.body);
     const me = currentUser(req);
     // A wrong password is a 422 on the field (never 401, so the client does not sign the person out).

@@ -7,12 +7,13 @@ import { changePasswordSchema, signInSchema, signUpSchema } from '../../../share
 import type { AppContext } from '../../app-context';
 import { conflict, HttpError, validationFailed } from '../../http-error';
 import { requireAuth } from '../../middleware/auth';
-import { authRateLimit } from '../../middleware/rate-limit';
+import { authRateLimit, perKeyRateLimit } from '../../middleware/rate-limit';
 import { parseBody } from '../../middleware/validate';
 import { currentUser } from '../../request-state';
 import { toUserDto, UserRepository } from '../users/user.repository';
 import { hashPassword, verifyAgainstDummy, verifyPassword } from './passwords';
 import { passwordResetRoutes } from './password-reset.routes';
+import { checkNewPassword } from './password-policy';
 import { signSessionToken } from './tokens';
 
 const emailTaken = () =>
@@ -27,8 +28,10 @@ export function authRoutes(ctx: AppContext): Router {
     const body = parseBody(signUpSchema, req.body);
     const users = new UserRepository(em());
     if (await users.exists(body.email)) throw emailTaken();
-    // The first account of a fresh instance becomes its admin (there is nobody else to appoint one).
-    const isFirst = (await users.count()) === 0;
+    await checkNewPassword(body.password, body, 'password');
+    // In development the first account becomes the admin; in production only with ADMIN_EMAIL or the
+    // one-time setup code printed in the server log (admin-setup.ts).
+    const isFirst = await ctx.adminSetup.grantsAdmin(users, body.email, body.setupCode);
     const user = users.create({
       email: body.email,
       displayName: body.displayName,
@@ -69,12 +72,15 @@ export function authRoutes(ctx: AppContext): Router {
     res.json({ user: toUserDto(currentUser(req)) });
   });
 
-  router.post('/password', signedIn, async (req, res) => {
+  // Limited per person (a stolen token must not turn into password guessing) and per address.
+  const passwordChangeLimit = perKeyRateLimit(ctx.config.authRateLimit, (req) => req.authUser?.id ?? null, 'password changes for your account');
+  router.post('/password', signedIn, passwordChangeLimit, authRateLimit(ctx.config.authRateLimit), async (req, res) => {
     const body = parseBody(changePasswordSchema, req.body);
     const user = await new UserRepository(em()).findByIdWithPassword(currentUser(req).id);
     if (!user || !(await verifyPassword(body.currentPassword, user.passwordHash))) {
       throw validationFailed({ currentPassword: 'The current password is wrong: type it again.' });
     }
+    await checkNewPassword(body.newPassword, user, 'newPassword');
     user.passwordHash = await hashPassword(body.newPassword, ctx.config.bcryptCost);
     user.tokenVersion += 1;
     await em().flush();

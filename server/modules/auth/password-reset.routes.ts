@@ -9,6 +9,7 @@ import { parseBody } from '../../middleware/validate';
 import { passwordResetMail } from '../mail/mail-templates';
 import { UserRepository } from '../users/user.repository';
 import { hashPassword } from './passwords';
+import { checkNewPassword } from './password-policy';
 import { PasswordResetRepository } from './password-reset.repository';
 import { hashLinkToken, newLinkToken } from './tokens';
 
@@ -19,20 +20,10 @@ export function passwordResetRoutes(ctx: AppContext): Router {
 
   router.post('/request', authRateLimit(ctx.config.authRateLimit), async (req, res) => {
     const body = parseBody(resetRequestSchema, req.body);
-    const em = ctx.orm.em;
-    const user = await new UserRepository(em).findByEmail(body.email);
-    if (user) {
-      const resets = new PasswordResetRepository(em);
-      const now = ctx.clock.now();
-      await resets.retireAllFor(user, now);
-      const { token, hash } = newLinkToken();
-      resets.create(user, hash, now, new Date(now.getTime() + RESET_LINK_LIFETIME_MS));
-      await em.flush();
-      const mail = passwordResetMail({ to: user.email, publicUrl: ctx.config.publicUrl, token, displayName: user.displayName });
-      // Not awaited: the answer must look the same whether or not the account exists.
-      ctx.mailer.send(mail).catch(ctx.logError);
-    }
+    // The answer goes out before anything is looked up, so its timing says nothing about the address;
+    // the lookup, the link and the mail follow in the background.
     res.status(202).json({ message: 'If an account with this address exists, a reset link is on its way.' });
+    sendResetLink(ctx, body.email).catch(ctx.logError);
   });
 
   router.post('/confirm', authRateLimit(ctx.config.authRateLimit), async (req, res) => {
@@ -45,6 +36,7 @@ export function passwordResetRoutes(ctx: AppContext): Router {
       throw gone(ErrorCode.ResetLinkUnusable, 'This reset link is no longer valid (links work once, for one hour). Ask for a new one.');
     }
     const user = reset.user;
+    await checkNewPassword(body.newPassword, user, 'newPassword');
     user.passwordHash = await hashPassword(body.newPassword, ctx.config.bcryptCost);
     user.tokenVersion += 1;
     reset.usedAt = now;
@@ -54,4 +46,17 @@ export function passwordResetRoutes(ctx: AppContext): Router {
   });
 
   return router;
+}
+
+async function sendResetLink(ctx: AppContext, email: string): Promise<void> {
+  const em = ctx.orm.em.fork();
+  const user = await new UserRepository(em).findByEmail(email);
+  if (!user) return;
+  const resets = new PasswordResetRepository(em);
+  const now = ctx.clock.now();
+  await resets.retireAllFor(user, now);
+  const { token, hash } = newLinkToken();
+  resets.create(user, hash, now, new Date(now.getTime() + RESET_LINK_LIFETIME_MS));
+  await em.flush();
+  await ctx.mailer.send(passwordResetMail({ to: user.email, publicUrl: ctx.config.publicUrl, token, displayName: user.displayName }));
 }

@@ -1,12 +1,15 @@
-/** Password hashing with bcrypt (bcryptjs); cost from config (10 by default, lower only in tests). */
-import bcrypt from 'bcryptjs';
+/**
+ * Password hashing with bcrypt (bcryptjs); cost from config (10 by default, at least 10 in production,
+ * lower only in tests). The work runs in the CPU pool's worker threads, never on the event loop.
+ */
+import { cpuPool } from '../../workers/cpu-pool';
 
 export function hashPassword(password: string, cost: number): Promise<string> {
-  return bcrypt.hash(password, cost);
+  return cpuPool.hash(password, cost);
 }
 
 export function verifyPassword(password: string, hash: string): Promise<boolean> {
-  return bcrypt.compare(password, hash);
+  return cpuPool.compare(password, hash);
 }
 
 const dummyHashes = new Map<number, Promise<string>>();
@@ -18,9 +21,10 @@ const dummyHashes = new Map<number, Promise<string>>();
 export async function verifyAgainstDummy(password: string, cost: number): Promise<false> {
   let dummy = dummyHashes.get(cost);
   if (!dummy) {
-    dummy = bcrypt.hash('not-a-real-password', cost);
+    dummy = cpuPool.hash('not-a-real-password', cost);
+    dummy.catch(() => dummyHashes.delete(cost));
     dummyHashes.set(cost, dummy);
   }
-  await bcrypt.compare(password, await dummy);
+  await cpuPool.compare(password, await dummy);
   return false;
 }

@@ -26,7 +26,8 @@ export function verifySessionToken(config: Config, clock: Clock, token: string):
       algorithms: ['HS256'],
       clockTimestamp: Math.floor(clock.now().getTime() / 1000),
     });
-    if (typeof payload !== 'object' || typeof payload.sub !== 'string' || typeof payload['tv'] !== 'number') return null;
+    // A token without an expiry is never accepted, however it was signed.
+    if (typeof payload !== 'object' || typeof payload.sub !== 'string' || typeof payload['tv'] !== 'number' || typeof payload.exp !== 'number') return null;
     return { sub: payload.sub, tv: payload['tv'] as number };
   } catch {
     return null;

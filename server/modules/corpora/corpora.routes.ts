@@ -13,7 +13,8 @@ import { requireRole } from '../../middleware/bench-access';
 import { parseBody, parseQuery } from '../../middleware/validate';
 import { currentBench, currentUser } from '../../request-state';
 import { ActivityRepository } from '../activity/activity.repository';
-import { analyseUpload, toPreview } from './corpus-import';
+import { cpuPool } from '../../workers/cpu-pool';
+import { savableFromPool } from './corpus-pool-result';
 import { uploadReader } from './corpus-upload';
 import { deleteDecision, runsUsingCorpus } from './corpus-usage';
 import { CorpusRepository, canEditCorpus, toCorpusDetail, toCorpusSummary } from './corpus.repository';
@@ -49,21 +50,23 @@ export function corporaRoutes(ctx: AppContext): Router {
 
   router.post('/preview', requireRole('member'), async (req, res) => {
     const upload = await readUpload(req, res);
-    res.json(toPreview(analyseUpload(upload.bytes, upload.fileName, upload.options)));
+    res.json((await cpuPool.analyse(upload.bytes, upload.fileName, upload.options, false)).preview);
   });
 
   router.post('/', requireRole('member'), async (req, res) => {
     const upload = await readUpload(req, res);
     const fields = parseBody(saveCorpusFieldsSchema, { name: upload.fields['name'], description: upload.fields['description'] ?? '' });
-    const analysed = analyseUpload(upload.bytes, upload.fileName, upload.options);
-    if (!analysed.parsed.ok) {
-      const first = analysed.parsed.problems.find((p) => p.severity === 'error');
-      const n = analysed.parsed.errorCount;
+    // Parsing and analysis run in a worker thread (server/workers/cpu-pool.ts); the event loop stays free.
+    const analysed = await cpuPool.analyse(upload.bytes, upload.fileName, upload.options, true);
+    const preview = analysed.preview;
+    if (!preview.ok) {
+      const first = preview.problems.find((p) => p.severity === 'error');
+      const n = preview.errorCount;
       const body: CorpusInvalidBody = {
         error: {
           code: ErrorCode.CorpusInvalid as 'CORPUS_INVALID',
           message: `Nothing was saved: the file has ${n === 1 ? '1 error' : `${n} errors`}. ${first?.message ?? ''} Fix ${n === 1 ? 'it' : 'them'} and upload the file again.`.replace(/\s+/g, ' '),
-          problems: analysed.parsed.problems,
+          problems: preview.problems,
           errorCount: n,
         },
       };
@@ -72,8 +75,8 @@ export function corporaRoutes(ctx: AppContext): Router {
     }
     const { bench, role } = currentBench(req);
     const user = currentUser(req);
-    const corpus = await repo().save({ bench, user, name: fields.name, description: fields.description, upload: analysed, at: ctx.clock.now() });
-    res.status(201).json(toCorpusDetail(corpus, canEditCorpus(corpus, user, role), analysed.splitCounts));
+    const corpus = await repo().save({ bench, user, name: fields.name, description: fields.description, upload: savableFromPool(upload.fileName, analysed), at: ctx.clock.now() });
+    res.status(201).json(toCorpusDetail(corpus, canEditCorpus(corpus, user, role), preview.splitCounts));
   });
 
   router.get('/:corpusId', requireRole('viewer'), async (req, res) => {

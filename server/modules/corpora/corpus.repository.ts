@@ -11,10 +11,25 @@ import { CorpusWord } from './corpus-word.entity';
 import { Corpus } from './corpus.entity';
 import { caseInsensitiveGlob } from './word-search';
 
-/** Rows per INSERT statement (5 parameters each stays far below SQLite's parameter limit). */
-const INSERT_CHUNK = 2000;
+/**
+ * Rows per INSERT statement (5 bound parameters each stays far below SQLite's parameter limit). Small
+ * statements, one per event-loop turn: other requests are answered between them.
+ */
+const INSERT_CHUNK = 500;
 
 const SORT_COLUMNS = { word: 'word', count: '`count`', length: '`length`' } as const;
+
+/** What a save needs: the parse summary and the rows (from the CPU pool, or from `analyseUpload` directly). */
+export interface SavableCorpus {
+  fileName: string;
+  options: AnalysedUpload['options'];
+  parsed: Pick<AnalysedUpload['parsed'], 'ok' | 'format' | 'stats' | 'normalisation'> & { alphabet: { chars: string[] } };
+  rows: { word: string; count: number; split: SplitName; length: number }[];
+}
+
+function savableOf(a: AnalysedUpload): SavableCorpus {
+  return { fileName: a.fileName, options: a.options, parsed: a.parsed, rows: wordRows(a) };
+}
 
 /** Uploader, coaches and owners (an admin acts as owner) may rename and delete; viewers never. */
 export function canEditCorpus(corpus: Corpus, user: User, role: Role): boolean {
@@ -37,10 +52,10 @@ export class CorpusRepository {
    * Saves a corpus (must have no errors) with all its words and an activity event in one transaction:
    * either everything is written or nothing.
    */
-  async save(input: { bench: Bench; user: User | null; name: string; description: string; upload: AnalysedUpload; at: Date }): Promise<Corpus> {
-    const { parsed, options, fileName } = input.upload;
+  async save(input: { bench: Bench; user: User | null; name: string; description: string; upload: AnalysedUpload | SavableCorpus; at: Date }): Promise<Corpus> {
+    const upload = 'splitParts' in input.upload ? savableOf(input.upload) : input.upload;
+    const { parsed, options, fileName, rows } = upload;
     if (!parsed.ok || !parsed.format) throw new Error('A corpus with errors cannot be saved.');
-    const rows = wordRows(input.upload);
     return this.em.transactional(async (em) => {
       const corpus = em.create(Corpus, {
         bench: input.bench,
@@ -71,8 +86,15 @@ export class CorpusRepository {
         input.at,
       );
       await em.flush();
+      const conn = em.getConnection();
+      const tx = em.getTransactionContext();
       for (let i = 0; i < rows.length; i += INSERT_CHUNK) {
-        await em.insertMany(CorpusWord, rows.slice(i, i + INSERT_CHUNK).map((r) => ({ ...r, corpus: corpus.id })) as never);
+        const chunk = rows.slice(i, i + INSERT_CHUNK);
+        const params: unknown[] = [];
+        for (const r of chunk) params.push(corpus.id, r.word, r.count, r.split, r.length);
+        const values = chunk.map(() => '(?, ?, ?, ?, ?)').join(', ');
+        await conn.execute(`insert into corpus_words (corpus_id, word, \`count\`, split, \`length\`) values ${values}`, params, 'run', tx);
+        await new Promise((r) => setImmediate(r));
       }
       return corpus;
     });
@@ -104,7 +126,9 @@ export class CorpusRepository {
       params.push(caseInsensitiveGlob(q.q));
     }
     const conn = this.em.getConnection();
-    const total: { n: number }[] = await conn.execute(`select count(*) as n from corpus_words where ${where.join(' and ')}`, params);
+    // Without filters the total is the corpus's number of word types (stored with it): no count over every row.
+    const total: { n: number }[] =
+      where.length === 1 ? [{ n: corpus.types }] : await conn.execute(`select count(*) as n from corpus_words where ${where.join(' and ')}`, params);
     const dir = q.dir === 'asc' ? 'asc' : 'desc';
     const order = q.sort === 'word' ? `word ${dir}` : `${SORT_COLUMNS[q.sort]} ${dir}, word asc`;
     const items: CorpusWordRow[] = await conn.execute(

@@ -5,6 +5,7 @@ import { createInvitationSchema } from '../../../shared/api/schemas';
 import type { AppContext } from '../../app-context';
 import { conflict, gone, notFound, roleTooLow } from '../../http-error';
 import { requireRole } from '../../middleware/bench-access';
+import { perKeyRateLimit } from '../../middleware/rate-limit';
 import { parseBody } from '../../middleware/validate';
 import { currentBench, currentUser } from '../../request-state';
 import { ActivityRepository } from '../activity/activity.repository';
@@ -21,7 +22,20 @@ export function invitationRoutes(ctx: AppContext): Router {
     res.json(pending.map(toInvitationDto));
   });
 
-  router.post('/', requireRole('coach'), async (req, res) => {
+  // Invitations send mail with a bench name of the sender's choosing: limited per sender, per bench and per address.
+  const limits = ctx.config.inviteRateLimit;
+  const window = (max: number) => ({ max, windowMs: limits.windowMs });
+  const perSender = perKeyRateLimit(window(limits.perSender), (req) => req.authUser?.id ?? null, 'invitations sent by you');
+  const perBench = perKeyRateLimit(window(limits.perBench), (req) => req.benchAccess?.bench.id ?? null, 'invitations from this bench');
+  const perAddress = perKeyRateLimit(
+    window(limits.perAddress),
+    (req) => {
+      const email = (req.body as { email?: unknown } | undefined)?.email;
+      return typeof email === 'string' && req.benchAccess ? `${req.benchAccess.bench.id} ${email.trim().toLowerCase()}` : null;
+    },
+    'invitations to this address',
+  );
+  router.post('/', requireRole('coach'), perSender, perBench, perAddress, async (req, res) => {
     const body = parseBody(createInvitationSchema, req.body);
     const { bench, role: myRole } = currentBench(req);
     const me = currentUser(req);

@@ -20,6 +20,7 @@ import type { AppContext } from '../../app-context';
 import { HttpError, notFound } from '../../http-error';
 import { parseBody, parseQuery } from '../../middleware/validate';
 import { checkFitsRun, readCheckpoint } from '../runs/checkpoint-check';
+import { checkCheckpointValues } from '../runs/checkpoint-checks';
 import { checkpointBytes, rawCheckpointBody } from '../runs/checkpoint-upload';
 import { Checkpoint } from '../runs/checkpoint.entity';
 import { CheckpointRepository, toCheckpointDto } from '../runs/checkpoint.repository';
@@ -104,6 +105,8 @@ export function runnerJobRoutes(ctx: AppContext): Router {
     const query = parseQuery(runnerCheckpointQuerySchema, req.query);
     const bytes = checkpointBytes(req);
     const found = readCheckpoint(bytes);
+    // The same checks as a person's upload: finite weights, a step in range, a non-negative finite bound.
+    checkCheckpointValues(found.checkpoint, query.boundBitsPerChar);
     checkFitsRun(found, run);
     const checkpoints = new CheckpointRepository(ctx.orm.em);
     const saved = checkpoints.create({

@@ -21,6 +21,8 @@ import { ActivityRepository } from '../activity/activity.repository';
 import { Corpus } from '../corpora/corpus.entity';
 import { checkFitsRun, readCheckpoint, runSettingsFromCheckpoint, unusable } from './checkpoint-check';
 import { checkpointBytes, checkpointFileReader, rawCheckpointBody } from './checkpoint-upload';
+import { checkCheckpointValues } from './checkpoint-checks';
+import { unsafeTextProblem } from '../../../shared/api/safe-text';
 import { CheckpointRepository, toCheckpointDto } from './checkpoint.repository';
 import { MetricRepository } from './metric.repository';
 import { loadRun, requireControl } from './run-access';
@@ -85,6 +87,7 @@ export function runDataRoutes(ctx: AppContext): Router {
     const query = parseQuery(checkpointUploadQuerySchema, req.query);
     const bytes = checkpointBytes(req);
     const found = readCheckpoint(bytes);
+    checkCheckpointValues(found.checkpoint, query.boundBitsPerChar);
     checkFitsRun(found, run);
     const checkpoints = new CheckpointRepository(ctx.orm.em);
     const saved = checkpoints.create({
@@ -123,6 +126,7 @@ export function runDataRoutes(ctx: AppContext): Router {
     const me = currentUser(req);
     const em = ctx.orm.em;
     const found = readCheckpoint(upload.bytes);
+    checkCheckpointValues(found.checkpoint);
     const ck = found.checkpoint;
     const corpusId = typeof upload.fields['corpusId'] === 'string' ? upload.fields['corpusId'].trim() : '';
     let corpus: Corpus | null = null;
@@ -137,6 +141,8 @@ export function runDataRoutes(ctx: AppContext): Router {
       }
     }
     const rawName = typeof upload.fields['name'] === 'string' ? upload.fields['name'].trim() : '';
+    const nameProblem = unsafeTextProblem(rawName) ?? unsafeTextProblem(upload.fileName);
+    if (nameProblem) throw validationFailed({ name: nameProblem });
     const name = (rawName || upload.fileName.replace(/\.nwck$/i, '').trim() || `Imported ${FAMILY_LABELS[ck.family]}`).slice(0, 120);
     const now = ctx.clock.now();
     const run = new RunRepository(em).create({

@@ -1,4 +1,5 @@
-import type { EntityManager, FilterQuery, QueryOrderMap } from '@mikro-orm/core';
+import { raw, type EntityManager, type FilterQuery, type QueryOrderMap } from '@mikro-orm/core';
+import { likeContains } from '../../db/like-pattern';
 import type { RunDto, RunFamily, RunPage, RunSettings, RunStatus, listRunsQuerySchema } from '../../../shared/api/runs';
 import type { RunPlacement } from '../../../shared/api/runners';
 import { roleAtLeast, type Role } from '../../../shared/api/types';
@@ -93,7 +94,8 @@ export class RunRepository {
     if (query.family.length > 0) where.family = { $in: query.family };
     if (query.status.length > 0) where.status = { $in: query.status };
     if (query.archived !== 'all') where.archived = query.archived === 'true';
-    if (query.q) where.name = { $like: `%${query.q}%` };
+    // `%`, `_` and `\` in the search are plain characters (escaped), not wildcards.
+    if (query.q) (where as Record<string, unknown>)[raw((alias: string) => `${alias}.name like ? escape '\\'`, [likeContains(query.q)])] = [];
     const orderBy = { [SORT_COLUMNS[query.sort]]: query.dir, id: 'asc' } as QueryOrderMap<Run>;
     const [runs, total] = await this.em.findAndCount(Run, where, {
       orderBy,

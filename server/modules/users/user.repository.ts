@@ -37,6 +37,10 @@ export class UserRepository {
     return (await this.em.count(User, { email })) > 0;
   }
 
+  countAdmins(): Promise<number> {
+    return this.em.count(User, { isAdmin: true });
+  }
+
   count(): Promise<number> {
     return this.em.count(User, {});
   }

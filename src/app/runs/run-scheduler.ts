@@ -14,6 +14,8 @@ const FLUSH_EVERY_MS = 5000;
 /** How long signing out waits for the runs of this tab to stop and save. */
 const SIGN_OUT_WAIT_MS = 20_000;
 const FLUSH_AT_POINTS = 500;
+/** Points kept for a retry while the server cannot be reached (the newest ones). */
+const MAX_BUFFERED_POINTS = 50_000;
 
 /** A sentence for an error from the server (through HttpClient) or from the worker (through comlink). */
 function problemOf(error: unknown): string {
@@ -33,6 +35,8 @@ function atLastStep(slot: Slot): boolean {
 
 interface Slot {
   live: LiveRun; handle: TrainerHandle | null; buffer: CurvePoint[]; lastFlush: number; saving: boolean; nextSave: number;
+  /** The flush in flight: flushes run one after another, never side by side. */
+  flushing: Promise<void> | null;
   best: { bits: number; step: number } | null;
   /** The worker's training loop has returned: no pause or resume reaches it any more. */
   ending: boolean;
@@ -93,7 +97,7 @@ export class RunScheduler implements OnDestroy {
     const live = new LiveRun(benchId, run, fromCheckpointId);
     this.slots.delete(run.id);
     this.slots.set(run.id, {
-      live, handle: null, buffer: [], lastFlush: performance.now(), saving: false, nextSave: 0, best: null,
+      live, handle: null, buffer: [], lastFlush: performance.now(), saving: false, nextSave: 0, best: null, flushing: null,
       ending: false, saveWork: null, statusWork: null, sentStatus: null,
     });
     this.version.update((v) => v + 1);
@@ -321,12 +325,36 @@ export class RunScheduler implements OnDestroy {
 
   /** Sends buffered metric points and the run's progress (steps, summary, optional status). */
   private async flush(slot: Slot, extra: { status?: 'training' | 'paused' } = {}): Promise<void> {
+    slot.lastFlush = performance.now();
+    // One flush at a time: a new one waits for the one in flight (overlapping requests were cut off).
+    const previous = slot.flushing;
+    const current = (async () => {
+      if (previous) await previous;
+      await this.sendProgress(slot, extra);
+    })();
+    slot.flushing = current;
+    try {
+      await current;
+    } finally {
+      if (slot.flushing === current) slot.flushing = null;
+    }
+  }
+
+  private async sendProgress(slot: Slot, extra: { status?: 'training' | 'paused' }): Promise<void> {
     const { live } = slot;
     const points = slot.buffer.splice(0);
-    slot.lastFlush = performance.now();
     const p = live.progress();
     try {
-      if (points.length > 0) await this.api.addMetrics(live.benchId, live.id, { points });
+      if (points.length > 0) {
+        try {
+          await this.api.addMetrics(live.benchId, live.id, { points });
+        } catch (error) {
+          // Not lost: the points go back to the front of the buffer and are sent with the next batch (the server
+          // keys points by run, series and step, so a batch that did arrive after all is not doubled).
+          slot.buffer.unshift(...points.slice(-MAX_BUFFERED_POINTS));
+          throw error;
+        }
+      }
       let answer: RunDto | undefined;
       if (p) {
         answer = await this.api.update(live.benchId, live.id, {
