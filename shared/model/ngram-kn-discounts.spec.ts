@@ -64,19 +64,19 @@ describe('Kneser–Ney on a small corpus', () => {
   const small = union.filter((_, i) => i % 28 === 0).map((word, i) => ({ word, count: 1 + 2 * (i % 2) }));
   const { parts } = splitCorpus(small, 1, { train: 0.7, validation: 0, test: 0.3 });
   const held = parts.test.map((w) => w.word);
-  const fit = (order: number) => KneserNeyModel.estimate(parts.train, alphabet, { order });
-  const bits = (order: number) => heldOutFigures(held, ngramLogProbs(fit(order), held)).bitsPerChar;
+  const fitted = (order: number) => KneserNeyModel.estimate(parts.train, alphabet, { order });
+  const bits = (order: number) => heldOutFigures(held, ngramLogProbs(fitted(order), held)).bitsPerChar;
 
   it('gets valid discounts at every order, some from the fallback', () => {
-    const top = [3, 4, 5].map((o) => fit(o).discounts.at(-1)!);
+    const top = [3, 4, 5].map((o) => fitted(o).discounts.at(-1)!);
     for (const d of top) expect(validDiscounts(d)).toBe(true);
     // At least one top order takes a discount from the order below (the closed form failed there).
-    expect([3, 4, 5].some((o) => { const d = fit(o).discounts; return d[o - 1].some((v, i) => v === d[o - 2][i]); })).toBe(true);
+    expect([3, 4, 5].some((o) => { const d = fitted(o).discounts; return d[o - 1].some((v, i) => v === d[o - 2][i]); })).toBe(true);
   });
 
   it('stays normalised in every context', () => {
     for (const order of [3, 4, 5]) {
-      const m = fit(order);
+      const m = fitted(order);
       for (const prefix of ['', 'a', 'ma', 'jos', 'zzq', 'elizabe']) {
         const sum = m.nextDistribution(prefix).reduce((s, p) => s + p, 0);
         expect(Math.abs(sum - 1)).toBeLessThan(1e-9);

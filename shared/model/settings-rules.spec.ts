@@ -69,10 +69,10 @@ describe('model-settings rules live in one place', () => {
 
   it('the Kneser–Ney discount range is (0, 1] everywhere', () => {
     expect(KN_DISCOUNT_RANGE.text).toBe('(0, 1]');
-    const fit = (discount: number) => accepts(() => KneserNeyModel.estimate([{ word: 'ab', count: 1 }], buildAlphabet(['ab']), { order: 2, discount }));
+    const fitted = (discount: number) => accepts(() => KneserNeyModel.estimate([{ word: 'ab', count: 1 }], buildAlphabet(['ab']), { order: 2, discount }));
     for (const [d, ok] of [[0, false], [0.5, true], [1, true], [1.01, false]] as const) {
       expect(ngramModelSchema.safeParse({ order: 2, discount: d }).success).toBe(ok);
-      expect(fit(d)).toBe(ok);
+      expect(fitted(d)).toBe(ok);
       expect(cli('--model', 'ngram', '--discount', String(d))).toBe(ok);
     }
   });

@@ -1,54 +1,17 @@
 import { DestroyRef, Injectable, OnDestroy, computed, effect, inject, signal, untracked } from '@angular/core';
 import { proxy } from 'comlink';
 import { ErrorCode } from '../../../shared/api/errors';
-import type { RunDto, RunStatus } from '../../../shared/api/runs';
+import type { RunDto } from '../../../shared/api/runs';
 import { ApiError, messageOf } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
-import { TRAINER_FACTORY, fromBoundaryError, type TrainerHandle } from '../workers/trainer-client';
+import { TRAINER_FACTORY } from '../workers/trainer-client';
 import type { TrainingOutcome, TrainingProgress } from '../workers/trainer-api';
-import { LiveRun, type CurvePoint } from './live-run';
+import { LiveRun } from './live-run';
 import { trainerSettingsOf, trainingSetOf } from './run-trainer-settings';
 import { RunsApi } from './runs-api';
-
-const FLUSH_EVERY_MS = 5000;
-/** How long signing out waits for the runs of this tab to stop and save. */
-const SIGN_OUT_WAIT_MS = 20_000;
-const FLUSH_AT_POINTS = 500;
-/** Points kept for a retry while the server cannot be reached (the newest ones). */
-const MAX_BUFFERED_POINTS = 50_000;
-
-/** A sentence for an error from the server (through HttpClient) or from the worker (through comlink). */
-function problemOf(error: unknown): string {
-  return error instanceof ApiError ? messageOf(error) : fromBoundaryError(error).message;
-}
-
-const lockName = (runId: string) => `noisewright-run:${runId}`;
-
-/** Fresh samples kept in the run's summary, so a reloaded page still shows the last ones. */
-const LAST_SAMPLES_KEPT = 12;
-
-/** The last progress reached the run's final step (the worker's loop returns right after it). */
-function atLastStep(slot: Slot): boolean {
-  const p = slot.live.progress();
-  return !!p && p.totalSteps > 0 && p.step >= p.totalSteps;
-}
-
-interface Slot {
-  live: LiveRun; handle: TrainerHandle | null; buffer: CurvePoint[]; lastFlush: number; saving: boolean; nextSave: number;
-  /** The flush in flight: flushes run one after another, never side by side. */
-  flushing: Promise<void> | null;
-  best: { bits: number; step: number } | null;
-  /** The worker's training loop has returned: no pause or resume reaches it any more. */
-  ending: boolean;
-  /** The save under way (autosave or by hand), so the final save waits for it instead of racing it. */
-  saveWork: Promise<void> | null;
-  /** The status update under way (pause / resume), so the end of training is sent after it. */
-  statusWork: Promise<void> | null;
-  /** The status this tab last had the server accept. */
-  sentStatus: RunStatus | null;
-}
-
-const AT_END_NOTICE = 'This run had already reached its last step and finishes now: there was nothing to pause.';
+import {
+  AT_END_NOTICE, FLUSH_AT_POINTS, FLUSH_EVERY_MS, LAST_SAMPLES_KEPT, MAX_BUFFERED_POINTS, SIGN_OUT_WAIT_MS, atLastStep, lockName, problemOf, type Slot,
+} from './run-slot';
 
 /**
  * Trains runs in this tab, one dedicated worker each, at most `limit` at once (hardware threads minus one, at
