@@ -19,11 +19,9 @@ import { splitOf } from '../../../shared/data/split';
 import type { AppContext } from '../../app-context';
 import { HttpError, notFound } from '../../http-error';
 import { parseBody, parseQuery } from '../../middleware/validate';
-import { checkFitsRun, readCheckpoint } from '../runs/checkpoint-check';
-import { checkCheckpointValues } from '../runs/checkpoint-checks';
+import { storeUploadedCheckpoint } from '../runs/checkpoint-store';
 import { checkpointBytes, rawCheckpointBody } from '../runs/checkpoint-upload';
 import { Checkpoint } from '../runs/checkpoint.entity';
-import { CheckpointRepository, toCheckpointDto } from '../runs/checkpoint.repository';
 import { MetricRepository } from '../runs/metric.repository';
 import { corpusSplit } from '../runs/run-settings';
 import { currentRunner, requireRunner } from './runner-auth';
@@ -103,19 +101,7 @@ export function runnerJobRoutes(ctx: AppContext): Router {
   router.post('/jobs/:runId/checkpoints', rawCheckpointBody(ctx.config.maxCheckpointBytes), async (req, res) => {
     const run = await jobs().held(currentRunner(req), String(req.params['runId']));
     const query = parseQuery(runnerCheckpointQuerySchema, req.query);
-    const bytes = checkpointBytes(req);
-    const found = readCheckpoint(bytes);
-    // The same checks as a person's upload: finite weights, a step in range, a non-negative finite bound.
-    checkCheckpointValues(found.checkpoint, query.boundBitsPerChar);
-    checkFitsRun(found, run);
-    const checkpoints = new CheckpointRepository(ctx.orm.em);
-    const saved = checkpoints.create({
-      run, step: found.checkpoint.step, boundBitsPerChar: query.boundBitsPerChar ?? null, reason: query.reason,
-      formatVersion: found.checkpoint.formatVersion, bytes, at: ctx.clock.now(),
-    });
-    await ctx.orm.em.flush();
-    if (query.reason === 'auto') await checkpoints.pruneAutomatic(run);
-    res.status(201).json(toCheckpointDto(saved));
+    res.status(201).json(await storeUploadedCheckpoint(ctx, run, checkpointBytes(req), query));
   });
 
   router.post('/jobs/:runId/finish', async (req, res) => {

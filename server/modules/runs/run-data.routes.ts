@@ -19,9 +19,10 @@ import { parseBody, parseQuery } from '../../middleware/validate';
 import { currentBench, currentUser } from '../../request-state';
 import { ActivityRepository } from '../activity/activity.repository';
 import { Corpus } from '../corpora/corpus.entity';
-import { checkFitsRun, readCheckpoint, runSettingsFromCheckpoint, unusable } from './checkpoint-check';
+import { readCheckpoint, runSettingsFromCheckpoint, unusable } from './checkpoint-check';
 import { checkpointBytes, checkpointFileReader, rawCheckpointBody } from './checkpoint-upload';
 import { checkCheckpointValues } from './checkpoint-checks';
+import { storeUploadedCheckpoint } from './checkpoint-store';
 import { unsafeTextProblem } from '../../../shared/api/safe-text';
 import { CheckpointRepository, toCheckpointDto } from './checkpoint.repository';
 import { MetricRepository } from './metric.repository';
@@ -85,23 +86,7 @@ export function runDataRoutes(ctx: AppContext): Router {
     requireControl(req, run);
     refuseIfArchived(run);
     const query = parseQuery(checkpointUploadQuerySchema, req.query);
-    const bytes = checkpointBytes(req);
-    const found = readCheckpoint(bytes);
-    checkCheckpointValues(found.checkpoint, query.boundBitsPerChar);
-    checkFitsRun(found, run);
-    const checkpoints = new CheckpointRepository(ctx.orm.em);
-    const saved = checkpoints.create({
-      run,
-      step: found.checkpoint.step,
-      boundBitsPerChar: query.boundBitsPerChar ?? null,
-      reason: query.reason,
-      formatVersion: found.checkpoint.formatVersion,
-      bytes,
-      at: ctx.clock.now(),
-    });
-    await ctx.orm.em.flush();
-    if (query.reason === 'auto') await checkpoints.pruneAutomatic(run);
-    res.status(201).json(toCheckpointDto(saved));
+    res.status(201).json(await storeUploadedCheckpoint(ctx, run, checkpointBytes(req), query));
   });
 
   router.get('/:runId/checkpoints', requireRole('viewer'), async (req, res) => {
