@@ -7,10 +7,11 @@ import { gruLogProbs, ngramLogProbs } from '../eval/baseline-figures';
 import { UnigramCharModel } from '../eval/corpus-entropy';
 import { heldOutSubsetNote } from '../eval/held-out-subset';
 import { decodeCheckpoint, type Checkpoint } from '../model/checkpoint';
-import { GruLanguageModel, type GruSettings } from '../model/gru-lm';
+import { GruLanguageModel } from '../model/gru-lm';
 import { KneserNeyModel } from '../model/ngram-kn';
 import { modelFromCheckpoint } from '../model/ssm-checkpoint';
 import { initNodeBackend } from '../node/tf-node';
+import { gruFrom } from '../training/evaluation-job';
 import { evaluateExact, evaluateSsm, heldOutSample, type EvaluationData, type ExactEvaluation, type SsmEvaluation } from '../eval/evaluation-report';
 import { stepsOf } from '../eval/units';
 import { checkWordsFit, loadCorpus } from './corpus-file';
@@ -36,17 +37,6 @@ function readCheckpoint(path: string): Checkpoint {
     throw new Error(`Cannot read the checkpoint "${path}" (${(e as NodeJS.ErrnoException).code ?? (e as Error).message}); check the path.`);
   }
   return decodeCheckpoint(bytes);
-}
-
-function gruFrom(ck: Checkpoint): GruLanguageModel {
-  const model = new GruLanguageModel(ck.settings as GruSettings, ck.seed);
-  try {
-    model.setWeights(ck.weights);
-  } catch (e) {
-    model.dispose();
-    throw e;
-  }
-  return model;
 }
 
 /** The split settings: given options first, then the checkpoint's record, then the defaults. */

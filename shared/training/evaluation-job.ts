@@ -59,7 +59,8 @@ export function evaluationData(input: Pick<EvaluationJobInput, 'corpus' | 'split
   return { alphabet: alphabetFromChars(chars), corpus: words, train, heldOut };
 }
 
-function gruFrom(ck: Checkpoint): GruLanguageModel {
+/** A GRU baseline with the checkpoint's settings and weights (disposed again if the weights do not fit). */
+export function gruFrom(ck: Checkpoint): GruLanguageModel {
   const model = new GruLanguageModel(ck.settings as GruSettings, ck.seed);
   try {
     model.setWeights(ck.weights);
