@@ -148,7 +148,7 @@ test('evaluate a checkpoint in the browser: figures equal npm run evaluate, box 
     // "Create report" freezes the shown evaluation under a stable link of the bench.
     await page.getByTestId('create-report').click();
     await page.getByTestId('report-title-input').fill('Tight figures of the demo run');
-    await page.getByRole('button', { name: 'Create report' }).click();
+    await page.getByRole('dialog').getByRole('button', { name: 'Create report' }).click();
     await page.waitForURL(new RegExp(`/benches/${bench.id}/reports/[0-9a-f-]{36}$`));
 
     // A viewer of the bench reads the stored figures but cannot evaluate (no form; the server refuses with 403).

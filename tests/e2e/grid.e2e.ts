@@ -123,7 +123,7 @@ async function gridStory(page: Page, problems: string[]): Promise<void> {
   const titleInput = page.getByTestId('report-title-input');
   assert.match(await titleInput.inputValue(), /^Comparison of /);
   await titleInput.fill('Two runs side by side');
-  await page.getByRole('button', { name: 'Create report' }).click();
+  await page.getByRole('dialog').getByRole('button', { name: 'Create report' }).click();
   await page.waitForURL(/\/reports\/[0-9a-f-]{36}$/);
   assert.equal((await page.getByTestId('report-title').textContent())?.trim(), 'Two runs side by side');
   await page.getByTestId('report-title').waitFor();
