@@ -14,7 +14,7 @@ export interface ProgressOutput {
 function figure(p: JobProgress): string {
   if (p.bitsPerChar === null) return '';
   const label = p.isBound === false ? 'warm-up figure (not a bound)' : p.isBound === true ? 'bound' : 'exact';
-  return `${p.bitsPerChar.toFixed(3)} bits/char ${label}`;
+  return `${p.bitsPerChar.toFixed(3)} bits/char (end-of-word counted), ${label}`;
 }
 
 const speed = (p: JobProgress) => (p.stepsPerSecond === null ? '-' : p.stepsPerSecond.toFixed(1));

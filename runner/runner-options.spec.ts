@@ -30,8 +30,8 @@ describe('npm run runner options', () => {
     display.update({ ...p, runId: 'r2', runName: 'gru', isBound: null });
     display.done('seed 1', { runId: 'r1', status: 'finished', step: 100, reason: null });
     expect(lines).toEqual([
-      'seed 1: step 10/100  5.0 steps/s  3.250 bits/char bound\n',
-      'gru: step 10/100  5.0 steps/s  3.250 bits/char exact\n',
+      'seed 1: step 10/100  5.0 steps/s  3.250 bits/char (end-of-word counted), bound\n',
+      'gru: step 10/100  5.0 steps/s  3.250 bits/char (end-of-word counted), exact\n',
       'seed 1: finished at step 100\n',
     ]);
   });
