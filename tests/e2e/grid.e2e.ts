@@ -12,7 +12,7 @@ import type { Page } from 'playwright-core';
 import type { GridDto } from '../../shared/api/grids';
 import { launchBrowser, screenshot, type TestBrowser } from './support/browser';
 import { startTestServer, type TestServer } from './support/test-server';
-import { benchWithSyllableCorpus, callApi, signUpThroughUi } from './support/workbench';
+import { benchWithSyllableCorpus, callApi, pick, signUpThroughUi } from './support/workbench';
 
 let server: TestServer;
 let browser: TestBrowser;
@@ -37,12 +37,6 @@ function parseCsv(text: string): string[][] {
 }
 
 const finishedOf = async (page: Page) => Number(/(\d+) \//.exec((await page.getByTestId('grid-progress').textContent()) ?? '')?.[1] ?? '0');
-
-async function pick(page: Page, field: string, options: string[]): Promise<void> {
-  await page.getByRole('combobox', { name: field }).click();
-  for (const name of options) await page.getByRole('option', { name, exact: true }).click();
-  await page.keyboard.press('Escape');
-}
 
 test('a grid of 4 cells trains, survives a reload, renders its heat map; two runs are compared and reported', { timeout: 300_000 }, async () => {
   const person = await browser.newPerson(server.url);

@@ -13,7 +13,7 @@ import type { RunnersOverview } from '../../shared/api/runners';
 import type { RunDto } from '../../shared/api/runs';
 import { launchBrowser, screenshot, type TestBrowser } from './support/browser';
 import { startTestServer, type TestServer } from './support/test-server';
-import { benchWithSyllableCorpus, callApi, signUpThroughUi } from './support/workbench';
+import { benchWithSyllableCorpus, callApi, pick, signUpThroughUi } from './support/workbench';
 
 let server: TestServer;
 let browser: TestBrowser;
@@ -51,12 +51,6 @@ async function settled(page: Page): Promise<void> {
     const content = document.querySelector('mat-sidenav-content');
     return !content || parseFloat(getComputedStyle(content).marginLeft) > 0;
   }, null, { timeout: 15_000 });
-}
-
-async function pick(page: Page, field: string, options: string[]): Promise<void> {
-  await page.getByRole('combobox', { name: field }).click();
-  for (const name of options) await page.getByRole('option', { name, exact: true }).click();
-  await page.keyboard.press('Escape');
 }
 
 test('a grid sent to the runners trains with the page closed, and Stop on the run page stops the runner job', { timeout: 420_000 }, async () => {

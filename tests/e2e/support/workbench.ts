@@ -37,3 +37,10 @@ export async function benchWithSyllableCorpus(baseUrl: string, token: string, be
   const corpus = await callApi<{ id: string }>(baseUrl, `/benches/${bench.id}/corpora`, token, { method: 'POST', body: form });
   return { benchId: bench.id, corpusId: corpus.id };
 }
+
+/** Chooses options of a Material multi-select by its label, then closes the panel. */
+export async function pick(page: Page, field: string, options: string[]): Promise<void> {
+  await page.getByRole('combobox', { name: field }).click();
+  for (const name of options) await page.getByRole('option', { name, exact: true }).click();
+  await page.keyboard.press('Escape');
+}
