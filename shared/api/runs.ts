@@ -187,6 +187,8 @@ export const runSummarySchema = z
     lastIsBound: z.boolean(),
     bestValidationBitsPerChar: bits('the best validation bound').nullable(),
     bestValidationStep: whole('the step of the best validation bound', 0, 1e9).nullable(),
+    /** Bits per word at the best validation step (beside its bits per character). */
+    bestValidationBitsPerWord: bits('the best validation figure per word').nullable(),
     wordsPerSecond: z.number().min(0, 'Give words per second of 0 or more.').max(1e9),
     parameterCount: whole('a parameter count', 0, 1e10),
     backend: safeText('Name the backend.').trim().min(1).max(40, 'Name the backend in at most 40 characters.'),

@@ -3,12 +3,19 @@
  * and whether the runs differ on that row (pure functions, no Angular).
  */
 import type { GruRunSettings, NgramRunSettings, RunDto, SsmRunSettings } from '../../../shared/api/runs';
+import { figureKindText, NEUTRAL_NAMES } from '../../../shared/api/figure-names';
 import { FAMILY_SHORT, STATUS_LABELS } from '../runs/run-labels';
 
 /** Figures of a run's latest stored evaluation, when it has one (bits; null = not measured). */
 export interface EvaluationFigures {
   crossEntropyBitsPerWord: number | null;
   meanNoiseInformationBits: number | null;
+  /** Held-out cost of the evaluation (tight estimate for the SSM, exact for GRU and n-gram). */
+  heldOutBitsPerChar?: number | null;
+  heldOutBitsPerWord?: number | null;
+  /** Standard errors of the two (per-word spread and repeats, shared/eval/standard-error.ts); null when not stored. */
+  heldOutSeBitsPerChar?: number | null;
+  heldOutSeBitsPerWord?: number | null;
 }
 
 export interface CompareRow {
@@ -22,6 +29,9 @@ export interface CompareRow {
   /** True when at least two runs show different values (a missing value counts as a value). */
   differs: boolean;
 }
+
+/** Shown where a figure comes from an evaluation and the run has none yet. */
+export const NOT_EVALUATED = 'not evaluated';
 
 const flow = (layers: { kind: string }[]) => layers.map((l) => l.kind).join(' → ');
 
@@ -77,14 +87,27 @@ export function compareRows(runs: RunDto[], evaluations: Record<string, Evaluati
     const values = settings.map((s) => s[key]?.value ?? null);
     rows.push({ key, label, group: 'setting', unit: '', values, differs: differs(values) });
   }
-  const figure = (key: string, label: string, unit: string, values: (number | null | undefined)[]) => {
-    const vs = values.map((v) => (v === undefined || v === null || !Number.isFinite(v) ? null : v));
+  const figure = (key: string, label: string, unit: string, values: (number | string | null | undefined)[]) => {
+    const vs = values.map((v) => (typeof v === 'string' ? v : v === undefined || v === null || !Number.isFinite(v) ? null : v));
     rows.push({ key, label, group: 'figure', unit, values: vs, differs: differs(vs) });
   };
-  figure('lastBound', 'Final training bound', 'bits/char', runs.map((r) => r.summary.lastBoundBitsPerChar));
-  figure('bestValidation', 'Best validation bound', 'bits/char', runs.map((r) => r.summary.bestValidationBitsPerChar));
-  figure('crossEntropy', 'Sequence cross entropy', 'bits/word', runs.map((r) => evaluations[r.id]?.crossEntropyBitsPerWord));
-  figure('noiseInformation', 'Noise mutual information', 'bits', runs.map((r) => evaluations[r.id]?.meanNoiseInformationBits));
+  // The SSM's training and validation figures are bounds, the GRU's and n-gram's exact: one neutral row name
+  // and a row that says which kind each run's figures are (shared/api/figure-names.ts).
+  const kinds = runs.map((r) => figureKindText(r.family));
+  rows.push({ key: 'figureKind', label: NEUTRAL_NAMES.kind, group: 'figure', unit: '', values: kinds, differs: differs(kinds) });
+  figure('lastBound', NEUTRAL_NAMES.training, 'bits/char', runs.map((r) => r.summary.lastBoundBitsPerChar));
+  figure('bestValidation', NEUTRAL_NAMES.validation, 'bits/char', runs.map((r) => r.summary.bestValidationBitsPerChar));
+  figure('bestValidationWord', `${NEUTRAL_NAMES.validation} per word`, 'bits/word', runs.map((r) => r.summary.bestValidationBitsPerWord));
+  // Figures of the latest stored evaluation; a run without one says so instead of a bare dash.
+  const ev = (pick: (e: EvaluationFigures) => number | null | undefined) =>
+    runs.map((r) => { const e = evaluations[r.id]; return e ? pick(e) : NOT_EVALUATED; });
+  figure('heldOut', 'Held-out cost (latest evaluation)', 'bits/char', ev((e) => e.heldOutBitsPerChar));
+  figure('heldOutSe', '± standard error', 'bits/char', ev((e) => e.heldOutSeBitsPerChar));
+  figure('heldOutWord', 'Held-out cost per word (latest evaluation)', 'bits/word', ev((e) => e.heldOutBitsPerWord));
+  figure('heldOutWordSe', '± standard error per word', 'bits/word', ev((e) => e.heldOutSeBitsPerWord));
+  figure('crossEntropy', 'Sequence cross entropy (latest evaluation)', 'bits/word', ev((e) => e.crossEntropyBitsPerWord));
+  figure('noiseInformation', 'Noise mutual information', 'bits',
+    runs.map((r) => (r.family !== 'ssm' ? null : evaluations[r.id] ? evaluations[r.id]!.meanNoiseInformationBits : NOT_EVALUATED)));
   figure('parameterCount', 'Parameters', '', runs.map((r) => r.summary.parameterCount));
   figure('wordsPerSecond', 'Training speed', 'words/s', runs.map((r) => r.summary.wordsPerSecond));
   figure('stepsDone', 'Steps done', '', runs.map((r) => r.stepsDone));

@@ -250,7 +250,7 @@ export class RunScheduler implements OnDestroy {
       live.lastValidation.set({ step: e.step, bitsPerChar: e.validationBitsPerChar, bitsPerWord: e.validationBitsPerWord, exact: live.run.family !== 'ssm' });
     }
     if (e && Number.isFinite(e.validationBitsPerChar) && (!slot.best || e.validationBitsPerChar < slot.best.bits)) {
-      slot.best = { bits: e.validationBitsPerChar, step: e.step };
+      slot.best = { bits: e.validationBitsPerChar, step: e.step, bitsPerWord: e.validationBitsPerWord };
     }
     const points = LiveRun.pointsOf(p);
     live.points.next(points);
@@ -325,6 +325,7 @@ export class RunScheduler implements OnDestroy {
           summary: {
             lastBoundBitsPerChar: p.trainBitsPerChar, lastIsBound: p.isBound, wordsPerSecond: Math.max(0, p.wordsPerSecond),
             ...(slot.best ? { bestValidationBitsPerChar: slot.best.bits, bestValidationStep: slot.best.step } : {}),
+            ...(slot.best && Number.isFinite(slot.best.bitsPerWord) ? { bestValidationBitsPerWord: slot.best.bitsPerWord } : {}),
             ...(live.samples().length > 0 ? { lastSamples: live.samples().slice(0, LAST_SAMPLES_KEPT).map((w) => w.slice(0, 64)) } : {}),
           },
         });

@@ -31,7 +31,7 @@ export interface Slot {
   live: LiveRun; handle: TrainerHandle | null; buffer: CurvePoint[]; lastFlush: number; saving: boolean; nextSave: number;
   /** The flush in flight: flushes run one after another, never side by side. */
   flushing: Promise<void> | null;
-  best: { bits: number; step: number } | null;
+  best: { bits: number; step: number; bitsPerWord?: number } | null;
   /** The worker's training loop has returned: no pause or resume reaches it any more. */
   ending: boolean;
   /** The save under way (autosave or by hand), so the final save waits for it instead of racing it. */

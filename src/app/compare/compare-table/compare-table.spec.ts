@@ -3,7 +3,7 @@ import { TestBed } from '@angular/core/testing';
 import { TestbedHarnessEnvironment } from '@angular/cdk/testing/testbed';
 import { MatTableHarness } from '@angular/material/table/testing';
 import type { RunDto } from '../../../../shared/api/runs';
-import { compareRows } from '../compare-rows';
+import { compareRows, NOT_EVALUATED, type EvaluationFigures } from '../compare-rows';
 import { CompareTable } from './compare-table';
 
 function ssmRun(id: string, name: string, stateSize: number, inference: string, seed: number): RunDto {
@@ -21,11 +21,11 @@ function ssmRun(id: string, name: string, stateSize: number, inference: string, 
   };
 }
 
-async function render(runs: RunDto[]) {
+async function render(runs: RunDto[], evaluations: Record<string, EvaluationFigures | undefined> = {}) {
   TestBed.configureTestingModule({ imports: [CompareTable], providers: [provideZonelessChangeDetection()] });
   const fixture = TestBed.createComponent(CompareTable);
   fixture.componentRef.setInput('runs', runs);
-  fixture.componentRef.setInput('rows', compareRows(runs));
+  fixture.componentRef.setInput('rows', compareRows(runs, evaluations));
   await fixture.whenStable();
   const table = await TestbedHarnessEnvironment.loader(fixture).getHarness(MatTableHarness);
   const rows = await table.getRows();
@@ -46,12 +46,12 @@ describe('CompareTable', { timeout: 30_000 }, () => {
     expect(rows.get('Inference flow')!['label']).not.toMatch(/differs/);
     expect(rows.get('Generative flow')!['label']).not.toMatch(/differs/);
     expect(rows.get('Learning rate')!['label']).not.toMatch(/differs/);
-    expect(rows.get('Best validation bound')!['label']).toMatch(/differs$/);
-    expect(rows.get('Final training bound')!['label']).not.toMatch(/differs/);
+    expect(rows.get('Best validation figure')!['label']).toMatch(/differs$/);
+    expect(rows.get('Final training figure')!['label']).not.toMatch(/differs/);
     // The values sit in one column per run, numbers as the table prints them.
     expect(rows.get('State size')!['run0']).toBe('8');
     expect(rows.get('State size')!['run1']).toBe('16');
-    expect(rows.get('Best validation bound')!['run0']).toBe('2.610');
+    expect(rows.get('Best validation figure')!['run0']).toBe('2.610');
     expect(rows.get('Generative flow')!['run1']).toBe('coupling → diag');
   });
 
@@ -66,8 +66,8 @@ describe('CompareTable', { timeout: 30_000 }, () => {
     const a = ssmRun('r1', 'a', 8, 'diag', 1);
     const b = { ...ssmRun('r2', 'b', 8, 'diag', 1), summary: { ...a.summary, bestValidationBitsPerChar: null } };
     const rows = await render([a, b]);
-    expect(rows.get('Best validation bound')!['run1']).toBe('—');
-    expect(rows.get('Best validation bound')!['label']).toMatch(/differs$/);
+    expect(rows.get('Best validation figure')!['run1']).toBe('—');
+    expect(rows.get('Best validation figure')!['label']).toMatch(/differs$/);
   });
 
   it('aligns text and numbers of a run column alike, and says the end of word is counted in bits/char', async () => {
@@ -87,3 +87,43 @@ describe('CompareTable', { timeout: 30_000 }, () => {
   });
 });
 
+function exactRun(id: string, name: string, family: 'gru' | 'ngram'): RunDto {
+  const base = ssmRun(id, name, 8, 'diag', 1);
+  const settings = family === 'gru'
+    ? { model: { stateSize: 8, embeddingSize: 16, observationHidden: 0 }, training: base.settings.training }
+    : { model: { order: 3 } };
+  return { ...base, family, settings: settings as RunDto['settings'],
+    summary: { lastBoundBitsPerChar: 2.2, bestValidationBitsPerChar: 2.3, bestValidationBitsPerWord: 14.25, parameterCount: 500 } };
+}
+
+describe('CompareTable figures of mixed families', { timeout: 30_000 }, () => {
+  it('never calls the GRU or n-gram figures a bound, and shows their exact cross entropy with bits per word', async () => {
+    const runs = [ssmRun('r1', 'ssm', 8, 'diag', 1), exactRun('r2', 'gru', 'gru'), exactRun('r3', 'kn3', 'ngram')];
+    // Figures as an evaluation stores them (invented values for the display only).
+    const evaluations: Record<string, EvaluationFigures> = {
+      r1: { crossEntropyBitsPerWord: 9.5, meanNoiseInformationBits: 0.4, heldOutBitsPerChar: 2.41, heldOutBitsPerWord: 15.1,
+        heldOutSeBitsPerChar: 0.021, heldOutSeBitsPerWord: 0.3 },
+      r2: { crossEntropyBitsPerWord: 9.25, meanNoiseInformationBits: null, heldOutBitsPerChar: 2.35, heldOutBitsPerWord: 14.5,
+        heldOutSeBitsPerChar: 0.02, heldOutSeBitsPerWord: 0.25 },
+    };
+    const rows = await render(runs, evaluations);
+    const labels = [...rows.keys()];
+    expect(labels.filter((l) => /bound/i.test(l))).toEqual([]);
+    expect(rows.get('Figures are')!['run0']).toBe('bounds (IWAE)');
+    expect(rows.get('Figures are')!['run1']).toBe('exact');
+    expect(rows.get('Figures are')!['run2']).toBe('exact');
+    // The GRU's sequence cross entropy is a number, not a dash; the n-gram without an evaluation says so.
+    expect(rows.get('Sequence cross entropy')!['run1']).toBe('9.250');
+    expect(rows.get('Sequence cross entropy')!['run2']).toBe(NOT_EVALUATED);
+    expect(rows.get('Best validation figure per word')!['run1']).toBe('14.250');
+    expect(rows.get('Held-out cost')!['run1']).toBe('2.350');
+    expect(rows.get('± standard error')!['run0']).toBe('0.021');
+    // No noise in an exact model: the row does not apply (a dash), whereas the SSM shows its figure.
+    expect(rows.get('Noise mutual information')!['run1']).toBe('—');
+    expect(rows.get('Noise mutual information')!['run0']).toBe('0.400');
+    // Bits per char say the end of word is counted; bits per word stand beside them.
+    const label = rows.get('Held-out cost')!['label']!;
+    expect(label).toContain('bits/char, end-of-word counted');
+    expect(rows.get('Held-out cost per word')!['label']).toContain('bits/word');
+  });
+});
