@@ -11,6 +11,7 @@ import { safeText } from './safe-text';
 import type { EvaluationDto } from './evaluations';
 import { GRID_FIGURE_LABELS, type GridDto, type LearnabilityVerdict } from './grids';
 import type { RunDto } from './runs';
+import { BITS_PER_CHAR, BITS_PER_WORD, figureKindText, isExactFamily, trainingFigureName, validationFigureName } from './figure-names';
 
 export const REPORT_KINDS = ['evaluation', 'comparison', 'grid'] as const;
 export type ReportKind = (typeof REPORT_KINDS)[number];
@@ -50,10 +51,45 @@ export interface ReportFigure {
 /** A comparison's curves: per run, the validation and training bound series (at most 500 points each). */
 export type ComparisonCurves = Record<string, Record<string, { steps: number[]; values: number[] }>>;
 
+/**
+ * The figures of a run's latest evaluation that a comparison shows (bits; null = not measured): held-out cost
+ * with its standard error (tight estimate for the SSM, exact for GRU and n-gram), the sequence cross entropy
+ * (exact for GRU and n-gram) and the mean noise MI (SSM only).
+ */
+export interface ComparisonEvaluation {
+  crossEntropyBitsPerWord: number | null;
+  meanNoiseInformationBits: number | null;
+  heldOutBitsPerChar?: number | null;
+  heldOutBitsPerWord?: number | null;
+  /** Standard errors from the per-word spread and the repeats (shared/eval/standard-error.ts); null when not stored. */
+  heldOutSeBitsPerChar?: number | null;
+  heldOutSeBitsPerWord?: number | null;
+}
+
+export function comparisonEvaluation(e: EvaluationDto): ComparisonEvaluation {
+  const r = e.results;
+  if (r.family === 'ssm') {
+    return {
+      crossEntropyBitsPerWord: r.crossEntropy.shared.crossEntropyBits, meanNoiseInformationBits: r.noise.meanBits,
+      heldOutBitsPerChar: r.tight.bitsPerChar, heldOutBitsPerWord: r.tight.bitsPerWord,
+      heldOutSeBitsPerChar: r.tight.standardError?.bitsPerChar.total ?? null,
+      heldOutSeBitsPerWord: r.tight.standardError?.bitsPerWord.total ?? null,
+    };
+  }
+  return {
+    crossEntropyBitsPerWord: r.crossEntropy.crossEntropyBits, meanNoiseInformationBits: null,
+    heldOutBitsPerChar: r.heldOut.bitsPerChar, heldOutBitsPerWord: r.heldOut.bitsPerWord,
+    heldOutSeBitsPerChar: r.heldOut.standardError?.bitsPerChar ?? null,
+    heldOutSeBitsPerWord: r.heldOut.standardError?.bitsPerWord ?? null,
+  };
+}
+
 export interface ReportSnapshot {
   figures: ReportFigure[];
   evaluation?: EvaluationDto;
   runs?: RunDto[];
+  /** A comparison's latest evaluation per run id (absent for runs without one, and in older reports). */
+  evaluations?: Record<string, ComparisonEvaluation>;
   curves?: ComparisonCurves;
   grid?: GridDto;
   verdict?: LearnabilityVerdict;
@@ -94,11 +130,16 @@ export function evaluationFigures(e: EvaluationDto): ReportFigure[] {
   const at = `${e.run.name} step ${e.checkpoint.step}`;
   if (r.family === 'ssm') {
     const kSet = `${at}; K=${r.tight.k}, repeats=${r.tight.repeats}`;
+    const se = r.tight.standardError;
+    // Error bars: the standard error from the per-word spread and the repeats; older evaluations stored only
+    // the spread over repeats, which is named for what it is.
     out.push(
-      ...row('held-out', 'bits per word', kSet, r.tight.bitsPerWord, 'bits/word'),
-      ...row('held-out', 'bits per word spread (sd)', kSet, r.tight.stdBitsPerWord, 'bits/word'),
-      ...row('held-out', 'bits per char', kSet, r.tight.bitsPerChar, 'bits/char'),
-      ...row('held-out', 'bits per char spread (sd)', kSet, r.tight.stdBitsPerChar, 'bits/char'),
+      ...row('held-out', 'bits per word (bound)', kSet, r.tight.bitsPerWord, BITS_PER_WORD),
+      ...(se ? row('held-out', 'bits per word standard error', kSet, se.bitsPerWord.total, BITS_PER_WORD)
+        : row('held-out', 'bits per word spread over repeats (sd)', kSet, r.tight.stdBitsPerWord, BITS_PER_WORD)),
+      ...row('held-out', 'bits per char (bound)', kSet, r.tight.bitsPerChar, BITS_PER_CHAR),
+      ...(se ? row('held-out', 'bits per char standard error', kSet, se.bitsPerChar.total, BITS_PER_CHAR)
+        : row('held-out', 'bits per char spread over repeats (sd)', kSet, r.tight.stdBitsPerChar, BITS_PER_CHAR)),
     );
     const ces: [string, typeof r.crossEntropy.shared | null][] = [[`S=${r.crossEntropy.samples}`, r.crossEntropy.shared], [`K=${r.crossEntropy.iwaeK}`, r.crossEntropy.iwae]];
     for (const [how, ce] of ces) {
@@ -123,9 +164,11 @@ export function evaluationFigures(e: EvaluationDto): ReportFigure[] {
     );
   } else {
     out.push(
-      ...row('held-out', 'bits per word', at, r.heldOut.bitsPerWord, 'bits/word'),
-      ...row('held-out', 'bits per char', at, r.heldOut.bitsPerChar, 'bits/char'),
-      ...row('cross entropy', 'H(p_data, p_model)', at, r.crossEntropy.crossEntropyBits, 'bits/word'),
+      ...row('held-out', 'bits per word (exact)', at, r.heldOut.bitsPerWord, BITS_PER_WORD),
+      ...row('held-out', 'bits per word standard error', at, r.heldOut.standardError?.bitsPerWord, BITS_PER_WORD),
+      ...row('held-out', 'bits per char (exact)', at, r.heldOut.bitsPerChar, BITS_PER_CHAR),
+      ...row('held-out', 'bits per char standard error', at, r.heldOut.standardError?.bitsPerChar, BITS_PER_CHAR),
+      ...row('cross entropy', 'H(p_data, p_model) (exact)', at, r.crossEntropy.crossEntropyBits, 'bits/word'),
       ...row('cross entropy', 'H(p_data)', at, r.crossEntropy.dataEntropyBits, 'bits/word'),
       ...row('cross entropy', 'KL gap', at, r.crossEntropy.klGapBits, 'bits/word'),
       ...row('cross entropy', 'model mass on the corpus', at, r.crossEntropy.modelMass, 'probability'),
@@ -133,39 +176,69 @@ export function evaluationFigures(e: EvaluationDto): ReportFigure[] {
     );
   }
   const b = r.baselines;
-  out.push(...row('baselines', 'unigram bits per char', at, b.unigram.bitsPerChar, 'bits/char'));
-  if (b.ngram) out.push(...row('baselines', `${b.ngram.order}-gram bits per char`, at, b.ngram.bitsPerChar, 'bits/char'));
+  // Baselines are exact; bits per word beside bits per char.
+  const baseline = (name: string, f: { bitsPerChar: number; bitsPerWord: number }) => [
+    ...row('baselines', `${name} bits per char (exact)`, at, f.bitsPerChar, BITS_PER_CHAR),
+    ...row('baselines', `${name} bits per word (exact)`, at, f.bitsPerWord, BITS_PER_WORD),
+  ];
+  out.push(...baseline('unigram', b.unigram));
+  if (b.ngram) {
+    out.push(...baseline(`${b.ngram.order}-gram`, b.ngram));
+    out.push(...row('baselines', `${b.ngram.order}-gram H(p_data, p_model) (exact)`, at, b.ngram.crossEntropy.crossEntropyBits, BITS_PER_WORD));
+  }
   if (b.gru) {
-    out.push(...row('baselines', 'GRU bits per char', at, b.gru.bitsPerChar, 'bits/char'));
+    out.push(...baseline('GRU', b.gru));
+    out.push(...row('baselines', 'GRU H(p_data, p_model) (exact)', at, b.gru.crossEntropy.crossEntropyBits, BITS_PER_WORD));
     out.push(...row('observation entropy', 'GRU', at, b.gru.predictiveEntropy.meanBits, 'bits'));
   }
   return out;
 }
 
-export function comparisonFigures(runs: readonly RunDto[]): ReportFigure[] {
-  return runs.flatMap((r) => [
-    ...row('run', 'family', r.name, r.family, ''),
-    ...row('run', 'steps done', r.name, r.stepsDone, 'steps'),
-    ...row('run', 'final training bound', r.name, r.summary.lastBoundBitsPerChar, 'bits/char'),
-    ...row('run', 'best validation bound', r.name, r.summary.bestValidationBitsPerChar, 'bits/char'),
-    ...row('run', 'parameters', r.name, r.summary.parameterCount, 'count'),
-    ...row('run', 'training speed', r.name, r.summary.wordsPerSecond, 'words/s'),
-  ]);
+/**
+ * A comparison's rows: per run its family, whether its figures are bounds or exact, the training and validation
+ * figures under their own names (never "bound" for GRU or n-gram), and, when given, its latest evaluation.
+ */
+export function comparisonFigures(runs: readonly RunDto[], evaluations: Record<string, ComparisonEvaluation> = {}): ReportFigure[] {
+  return runs.flatMap((r) => {
+    const e = evaluations[r.id];
+    const heldOut = isExactFamily(r.family) ? 'held-out (exact)' : 'held-out (tight estimate, bound)';
+    return [
+      ...row('run', 'family', r.name, r.family, ''),
+      ...row('run', 'figures are', r.name, figureKindText(r.family), ''),
+      ...row('run', 'steps done', r.name, r.stepsDone, 'steps'),
+      ...row('run', `final ${trainingFigureName(r.family, r.summary.lastIsBound ?? true).toLowerCase()}`, r.name, r.summary.lastBoundBitsPerChar, BITS_PER_CHAR),
+      ...row('run', `best ${validationFigureName(r.family).toLowerCase()}`, r.name, r.summary.bestValidationBitsPerChar, BITS_PER_CHAR),
+      ...row('run', `best ${validationFigureName(r.family).toLowerCase()} per word`, r.name, r.summary.bestValidationBitsPerWord, BITS_PER_WORD),
+      ...row('run', 'parameters', r.name, r.summary.parameterCount, 'count'),
+      ...row('run', 'training speed', r.name, r.summary.wordsPerSecond, 'words/s'),
+      ...(e ? [
+        ...row('latest evaluation', `${heldOut} bits per char`, r.name, e.heldOutBitsPerChar, BITS_PER_CHAR),
+        ...row('latest evaluation', 'bits per char standard error', r.name, e.heldOutSeBitsPerChar, BITS_PER_CHAR),
+        ...row('latest evaluation', `${heldOut} bits per word`, r.name, e.heldOutBitsPerWord, BITS_PER_WORD),
+        ...row('latest evaluation', 'bits per word standard error', r.name, e.heldOutSeBitsPerWord, BITS_PER_WORD),
+        ...row('latest evaluation', `sequence cross entropy${isExactFamily(r.family) ? ' (exact)' : ''}`, r.name, e.crossEntropyBitsPerWord, BITS_PER_WORD),
+        ...row('latest evaluation', 'mean noise mutual information', r.name, e.meanNoiseInformationBits, 'bits'),
+      ] : []),
+    ];
+  });
 }
 
 export function gridFigures(grid: GridDto, verdict?: LearnabilityVerdict): ReportFigure[] {
   const f = GRID_FIGURE_LABELS[grid.figure];
+  const unit = f.unit === 'bits/char' ? BITS_PER_CHAR : f.unit;
   const out = grid.cells.flatMap((c) => [
-    ...row('cell', f.label, c.label, c.figure, f.unit),
+    ...row('cell', f.label, c.label, c.figure, unit),
     ...row('cell', 'status', c.label, c.run?.status ?? 'deleted', ''),
   ]);
   if (verdict) {
     for (const v of verdict.rows) {
-      out.push(...row('verdict', 'bits per char', v.model, v.bitsPerChar, 'bits/char'));
-      out.push(...row('verdict', 'gap to the n-gram floor', v.model, v.gapToNgramFloor, 'bits/char'));
+      const kind = isExactFamily(v.family) ? 'exact' : 'bound';
+      out.push(...row('verdict', `bits per char (${kind})`, v.model, v.bitsPerChar, BITS_PER_CHAR));
+      out.push(...row('verdict', `bits per word (${kind})`, v.model, v.bitsPerWord, BITS_PER_WORD));
+      out.push(...row('verdict', 'gap to the best n-gram', v.model, v.gapToNgramFloor, BITS_PER_CHAR));
     }
     for (const c of verdict.comparisons) {
-      out.push(...row('verdict', 'SSM minus GRU', `state size ${c.stateSize}`, c.difference, 'bits/char'));
+      out.push(...row('verdict', 'SSM minus GRU', `state size ${c.stateSize}`, c.difference, BITS_PER_CHAR));
       out.push(...row('verdict', 'on par with the GRU', `state size ${c.stateSize}; tolerance ${verdict.toleranceBits}`, c.onPar === null ? null : c.onPar ? 'yes' : 'no', ''));
     }
   }

@@ -69,7 +69,9 @@ describe('the learnability check', () => {
     for (const cell of grid.cells) {
       const url = `/api/benches/${f.benchId}/runs/${cell.run!.id}`;
       await api().patch(url).set(bearer(f.tokens.member)).send({ status: 'training' }).expect(200);
-      await api().patch(url).set(bearer(f.tokens.member)).send({ status: 'finished', summary: { bestValidationBitsPerChar: BOUNDS[String(cell.values[0])] } }).expect(200);
+      // Bits per word of the best validation step: 5 × bits per char here (an invented mean of 5 characters per word).
+      const bpc = BOUNDS[String(cell.values[0])]!;
+      await api().patch(url).set(bearer(f.tokens.member)).send({ status: 'finished', summary: { bestValidationBitsPerChar: bpc, bestValidationBitsPerWord: 5 * bpc } }).expect(200);
     }
     const res = await api().get(`/api/benches/${f.benchId}/grids/${grid.id}/verdict`).set(bearer(f.tokens.viewer));
     expect(res.status).toBe(200);
@@ -82,6 +84,7 @@ describe('the learnability check', () => {
     const row = (m: string) => v.rows.find((r) => r.model === m)!;
     expect(row('ngram-1').bitsPerChar).toBeCloseTo(4.2, 12);
     expect(row('ngram-1').gapToNgramFloor).toBeCloseTo(4.2 - 2.45, 12); // 1.75
+    expect(row('gru-16').bitsPerWord).toBeCloseTo(5 * 2.3, 12); // bits per word beside bits per char
     expect(row('gru-16').gapToNgramFloor).toBeCloseTo(2.3 - 2.45, 12); // −0.15: better than the floor
     expect(row('ssm-32').gapToNgramFloor).toBeCloseTo(2.2 - 2.45, 12); // −0.25
     // Tolerance 0.05 bits/char (common practice, no source): 8 → 2.43 − 2.40 = 0.03 on par; 16 → 2.41 − 2.30 = 0.11 not;

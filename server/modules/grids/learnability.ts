@@ -59,6 +59,12 @@ export function bitsPerCharOf(summary: RunSummary): number | null {
   return bound === null || !Number.isFinite(bound) ? null : bound;
 }
 
+/** Bits per word beside `bitsPerCharOf`: only when the figure is the best validation one (its step's per-word figure). */
+export function bitsPerWordOf(summary: RunSummary): number | null {
+  const v = summary.bestValidationBitsPerChar != null ? summary.bestValidationBitsPerWord : null;
+  return v === null || v === undefined || !Number.isFinite(v) ? null : v;
+}
+
 function parseModel(model: string): { family: RunFamily; size: number } {
   const [family, size] = model.split('-');
   return { family: family as RunFamily, size: Number(size) };
@@ -68,7 +74,7 @@ export function learnabilityVerdict(gridId: string, budgetSteps: number, cells: 
                                     toleranceBits = LEARNABILITY_TOLERANCE_BITS): LearnabilityVerdict {
   const rows: LearnabilityRow[] = cells.map((c) => ({
     model: c.model, ...parseModel(c.model), runId: c.run?.id ?? null, status: c.run?.status ?? null,
-    bitsPerChar: c.run ? bitsPerCharOf(c.run.summary) : null, gapToNgramFloor: null,
+    bitsPerChar: c.run ? bitsPerCharOf(c.run.summary) : null, bitsPerWord: c.run ? bitsPerWordOf(c.run.summary) : null, gapToNgramFloor: null,
   }));
   let floor: { order: number; bitsPerChar: number } | null = null;
   for (const r of rows) {

@@ -5,7 +5,9 @@
  */
 import type { EntityManager } from '@mikro-orm/better-sqlite';
 import {
+  comparisonEvaluation,
   comparisonFigures,
+  type ComparisonEvaluation,
   evaluationFigures,
   gridFigures,
   type ComparisonCurves,
@@ -51,12 +53,18 @@ export async function buildSnapshot(em: EntityManager, bench: Bench, me: User, r
     const metrics = new MetricRepository(em);
     const runs = [];
     const curves: ComparisonCurves = {};
+    const evaluations: Record<string, ComparisonEvaluation> = {};
+    const evaluationRepo = new EvaluationRepository(em);
     for (const run of found) {
       runs.push(await repo.dto(run, me, role));
+      // The run's latest evaluation (held-out cost with its standard error, cross entropy), as the compare page shows.
+      const newest = (await evaluationRepo.page(bench, { runId: run.id, limit: 1, offset: 0 })).items[0];
+      const full = newest ? await evaluationRepo.find(bench, newest.id) : null;
+      if (full) evaluations[run.id] = comparisonEvaluation(toEvaluationDto(full));
       const page = await metrics.read(run, { series: CURVE_SERIES, sinceStep: -1, limit: 50_000 });
       curves[run.id] = Object.fromEntries(Object.entries(page.series).map(([name, s]) => [name, thin(s.steps, s.values, MAX_CURVE_POINTS)]));
     }
-    return { figures: comparisonFigures(runs), runs, curves };
+    return { figures: comparisonFigures(runs, evaluations), runs, curves, evaluations };
   }
   const grids = new GridRepository(em);
   const grid = await grids.find(bench, ids[0]!);

@@ -73,7 +73,7 @@ describe('reports', () => {
     report = res.body as ReportDto;
     expect(report.link).toBe(`/benches/${f.benchId}/reports/${report.id}`);
     expect(report.snapshot.evaluation!.results).toEqual(evaluation.results);
-    const bitsPerChar = report.snapshot.figures.find((x) => x.section === 'held-out' && x.name === 'bits per char')!;
+    const bitsPerChar = report.snapshot.figures.find((x) => x.section === 'held-out' && x.name === 'bits per char (bound)')!;
     expect(bitsPerChar.value).toBe(2.3);
     const read = await api().get(`${reportsUrl()}/${report.id}`).set(bearer(f.tokens.viewer));
     expect(read.body).toEqual(report);
@@ -111,6 +111,10 @@ describe('reports', () => {
     expect(snap.curves![runB.id]!['valid_bound']).toEqual({ steps: [10, 20], values: [3, 2.5] });
     const best = snap.figures.find((x: ReportFigure) => x.setting === 'Second SSM' && x.name === 'best validation bound')!;
     expect(best.value).toBe(2.5);
+    // The run with an evaluation brings its held-out cost and standard error; the other has no evaluation rows.
+    expect(snap.evaluations![runA.id]!.heldOutBitsPerChar).toBe(2.3);
+    expect(snap.figures.find((x: ReportFigure) => x.section === 'latest evaluation' && x.setting === runA.name && /bits per char$/.test(x.name))!.value).toBe(2.3);
+    expect(snap.figures.filter((x: ReportFigure) => x.section === 'latest evaluation' && x.setting === 'Second SSM')).toEqual([]);
 
     const grid = (await api().post(`/api/benches/${f.benchId}/grids`).set(bearer(f.tokens.member)).send({
       name: 'Sizes', corpusId, family: 'gru',

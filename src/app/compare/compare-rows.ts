@@ -2,21 +2,13 @@
  * The side-by-side table of a comparison, as plain data: one row per setting or figure, one value per run,
  * and whether the runs differ on that row (pure functions, no Angular).
  */
+import type { ComparisonEvaluation } from '../../../shared/api/reports';
 import type { GruRunSettings, NgramRunSettings, RunDto, SsmRunSettings } from '../../../shared/api/runs';
 import { figureKindText, NEUTRAL_NAMES } from '../../../shared/api/figure-names';
 import { FAMILY_SHORT, STATUS_LABELS } from '../runs/run-labels';
 
-/** Figures of a run's latest stored evaluation, when it has one (bits; null = not measured). */
-export interface EvaluationFigures {
-  crossEntropyBitsPerWord: number | null;
-  meanNoiseInformationBits: number | null;
-  /** Held-out cost of the evaluation (tight estimate for the SSM, exact for GRU and n-gram). */
-  heldOutBitsPerChar?: number | null;
-  heldOutBitsPerWord?: number | null;
-  /** Standard errors of the two (per-word spread and repeats, shared/eval/standard-error.ts); null when not stored. */
-  heldOutSeBitsPerChar?: number | null;
-  heldOutSeBitsPerWord?: number | null;
-}
+/** Figures of a run's latest stored evaluation, when it has one (shared/api/reports.ts). */
+export type EvaluationFigures = ComparisonEvaluation;
 
 export interface CompareRow {
   key: string;
@@ -77,8 +69,24 @@ function differs(values: (string | number | null)[]): boolean {
   return values.length > 1 && values.some((v) => v !== values[0]);
 }
 
-/** The rows of the side-by-side table: settings first (in a fixed order), then the figures. */
-export function compareRows(runs: RunDto[], evaluations: Record<string, EvaluationFigures | undefined> = {}): CompareRow[] {
+/** Settings first (in a fixed order), then the figures. */
+type FigureAdder = (key: string, label: string, unit: string, values: (number | string | null | undefined)[]) => void;
+
+/** Figures of the latest stored evaluation; a run without one says so instead of a bare dash. */
+function evaluationRows(runs: RunDto[], evaluations: Record<string, EvaluationFigures | undefined>, figure: FigureAdder): void {
+  const ev = (pick: (e: EvaluationFigures) => number | null | undefined) =>
+    runs.map((r) => { const e = evaluations[r.id]; return e ? pick(e) : NOT_EVALUATED; });
+  figure('heldOut', 'Held-out cost (latest evaluation)', 'bits/char', ev((e) => e.heldOutBitsPerChar));
+  figure('heldOutSe', '± standard error', 'bits/char', ev((e) => e.heldOutSeBitsPerChar));
+  figure('heldOutWord', 'Held-out cost per word (latest evaluation)', 'bits/word', ev((e) => e.heldOutBitsPerWord));
+  figure('heldOutWordSe', '± standard error per word', 'bits/word', ev((e) => e.heldOutSeBitsPerWord));
+  figure('crossEntropy', 'Sequence cross entropy (latest evaluation)', 'bits/word', ev((e) => e.crossEntropyBitsPerWord));
+  figure('noiseInformation', 'Noise mutual information', 'bits',
+    runs.map((r) => (r.family !== 'ssm' ? null : evaluations[r.id] ? evaluations[r.id]!.meanNoiseInformationBits : NOT_EVALUATED)));
+}
+
+/** The rows of the side-by-side table; without `evaluations` (older reports) the evaluation rows are left out. */
+export function compareRows(runs: RunDto[], evaluations?: Record<string, EvaluationFigures | undefined>): CompareRow[] {
   const settings = runs.map(settingsOf);
   const rows: CompareRow[] = [];
   for (const key of SETTING_ORDER) {
@@ -98,16 +106,7 @@ export function compareRows(runs: RunDto[], evaluations: Record<string, Evaluati
   figure('lastBound', NEUTRAL_NAMES.training, 'bits/char', runs.map((r) => r.summary.lastBoundBitsPerChar));
   figure('bestValidation', NEUTRAL_NAMES.validation, 'bits/char', runs.map((r) => r.summary.bestValidationBitsPerChar));
   figure('bestValidationWord', `${NEUTRAL_NAMES.validation} per word`, 'bits/word', runs.map((r) => r.summary.bestValidationBitsPerWord));
-  // Figures of the latest stored evaluation; a run without one says so instead of a bare dash.
-  const ev = (pick: (e: EvaluationFigures) => number | null | undefined) =>
-    runs.map((r) => { const e = evaluations[r.id]; return e ? pick(e) : NOT_EVALUATED; });
-  figure('heldOut', 'Held-out cost (latest evaluation)', 'bits/char', ev((e) => e.heldOutBitsPerChar));
-  figure('heldOutSe', '± standard error', 'bits/char', ev((e) => e.heldOutSeBitsPerChar));
-  figure('heldOutWord', 'Held-out cost per word (latest evaluation)', 'bits/word', ev((e) => e.heldOutBitsPerWord));
-  figure('heldOutWordSe', '± standard error per word', 'bits/word', ev((e) => e.heldOutSeBitsPerWord));
-  figure('crossEntropy', 'Sequence cross entropy (latest evaluation)', 'bits/word', ev((e) => e.crossEntropyBitsPerWord));
-  figure('noiseInformation', 'Noise mutual information', 'bits',
-    runs.map((r) => (r.family !== 'ssm' ? null : evaluations[r.id] ? evaluations[r.id]!.meanNoiseInformationBits : NOT_EVALUATED)));
+  if (evaluations) evaluationRows(runs, evaluations, figure);
   figure('parameterCount', 'Parameters', '', runs.map((r) => r.summary.parameterCount));
   figure('wordsPerSecond', 'Training speed', 'words/s', runs.map((r) => r.summary.wordsPerSecond));
   figure('stepsDone', 'Steps done', '', runs.map((r) => r.stepsDone));

@@ -6,32 +6,11 @@ import { HttpClient, HttpParams } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
 import type { EvaluationDto, EvaluationPage } from '../../../shared/api/evaluations';
+import { comparisonEvaluation } from '../../../shared/api/reports';
 import type { RunDto } from '../../../shared/api/runs';
 import type { EvaluationFigures } from './compare-rows';
 
 const enc = encodeURIComponent;
-
-/**
- * The comparison's figures of one evaluation: held-out cost with its standard error (tight estimate for the
- * SSM, exact for GRU and n-gram), the sequence cross entropy (exact for GRU and n-gram) and the mean noise MI.
- */
-export function figuresOf(e: EvaluationDto): EvaluationFigures {
-  const r = e.results;
-  if (r.family === 'ssm') {
-    return {
-      crossEntropyBitsPerWord: r.crossEntropy.shared.crossEntropyBits, meanNoiseInformationBits: r.noise.meanBits,
-      heldOutBitsPerChar: r.tight.bitsPerChar, heldOutBitsPerWord: r.tight.bitsPerWord,
-      heldOutSeBitsPerChar: r.tight.standardError?.bitsPerChar.total ?? null,
-      heldOutSeBitsPerWord: r.tight.standardError?.bitsPerWord.total ?? null,
-    };
-  }
-  return {
-    crossEntropyBitsPerWord: r.crossEntropy.crossEntropyBits, meanNoiseInformationBits: null,
-    heldOutBitsPerChar: r.heldOut.bitsPerChar, heldOutBitsPerWord: r.heldOut.bitsPerWord,
-    heldOutSeBitsPerChar: r.heldOut.standardError?.bitsPerChar ?? null,
-    heldOutSeBitsPerWord: r.heldOut.standardError?.bitsPerWord ?? null,
-  };
-}
 
 @Injectable({ providedIn: 'root' })
 export class ComparisonSources {
@@ -47,7 +26,7 @@ export class ComparisonSources {
         const newest = page.items[0];
         if (!newest) return;
         const full = await firstValueFrom(this.http.get<EvaluationDto>(`/api/benches/${enc(benchId)}/evaluations/${enc(newest.id)}`));
-        out[run.id] = figuresOf(full);
+        out[run.id] = comparisonEvaluation(full);
       } catch {
         // No evaluation figures for this run: the table shows "—".
       }

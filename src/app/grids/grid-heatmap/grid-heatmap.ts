@@ -26,7 +26,8 @@ export class GridHeatmap {
   protected readonly height = computed(() => Math.max(220, 90 + this.data().rows.length * 64));
   protected readonly options = computed<EChartsCoreOption>(() => {
     const d = this.data();
-    const unit = GRID_FIGURE_LABELS[this.figure()].unit;
+    const shortUnit = GRID_FIGURE_LABELS[this.figure()].unit;
+    const unit = shortUnit === 'bits/char' ? 'bits/char (end-of-word counted)' : shortUnit;
     const scores = d.cells.map((c) => c.goodness);
     const lo = scores.length ? Math.min(...scores) : 0;
     const hi = scores.length ? Math.max(...scores) : 1;
@@ -37,7 +38,7 @@ export class GridHeatmap {
       tooltip: {
         formatter: ({ data: { value: v } }: { data: { value: number[] } }) =>
           `${d.columnTitle} ${d.columns[v[0]!]}${d.rowTitle ? `, ${d.rowTitle} ${d.rows[v[1]!]}` : ''}<br/>` +
-          `${format(v[2]!, unit)} ${unit}${v[5]! > 1 ? ` (mean of ${v[4]} of ${v[5]} runs)` : ''}`,
+          `${format(v[2]!, shortUnit)}${v[6]! >= 0 ? ` ± ${format(v[6]!, shortUnit)}` : ''} ${unit}${v[5]! > 1 ? ` (mean of ${v[4]} of ${v[5]} runs${v[6]! >= 0 ? ', ± standard error over the runs' : ''})` : ''}`,
       },
       grid: { left: 110, right: 24, top: 16, bottom: 56 },
       xAxis: { type: 'category', data: d.columns, name: d.columnTitle, nameLocation: 'middle', nameGap: 32, splitArea: { show: true },
@@ -49,10 +50,10 @@ export class GridHeatmap {
         type: 'heatmap',
         // Dark squares (the better half of the ramp) get paper-coloured figures, pale ones ink.
         data: d.cells.map((c) => ({
-          value: [c.x, c.y, c.value, c.goodness, c.runs, c.of],
+          value: [c.x, c.y, c.value, c.goodness, c.runs, c.of, c.se ?? -1],
           label: { color: hi > lo && (c.goodness - lo) / (hi - lo) > 0.6 ? C.paper : C.ink },
         })),
-        label: { show: true, fontFamily: CHART_MONO, fontSize: 13, formatter: (p: { data: { value: number[] } }) => format(p.data.value[2]!, unit) },
+        label: { show: true, fontFamily: CHART_MONO, fontSize: 13, formatter: (p: { data: { value: number[] } }) => format(p.data.value[2]!, shortUnit) },
         itemStyle: { borderColor: C.paper, borderWidth: 2 },
       }],
     };

@@ -27,6 +27,10 @@ describe('heatmapData', () => {
     expect(at(1, 0)).toMatchObject({ value: 1.9, runs: 1, of: 2 });
     expect(at(0, 1)?.value).toBeCloseTo(1.7, 12);
     expect(at(1, 1)).toBeUndefined();
+    // Error bar over the seeds: standard error of the mean s/√n, by hand: values 2.0 and 2.2, s = √0.02 ≈ 0.141421,
+    // s/√2 = 0.1; a square of one run has none.
+    expect(at(0, 0)?.se).toBeCloseTo(0.1, 12);
+    expect(at(1, 0)?.se).toBeNull();
     expect(d.filled).toBe(5);
     expect(d.total).toBe(8);
   });

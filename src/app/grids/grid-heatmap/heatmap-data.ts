@@ -16,7 +16,8 @@ export function goodness(value: number, figure: GridFigure): number {
   return GRID_FIGURE_LABELS[figure].higherIsBetter ? value : -value;
 }
 
-export interface HeatCell { x: number; y: number; value: number; goodness: number; runs: number; of: number }
+/** `se`: standard error of the mean over the averaged runs (s/√n, sample s); null for a single run. */
+export interface HeatCell { x: number; y: number; value: number; goodness: number; runs: number; of: number; se: number | null }
 export interface HeatmapData {
   columns: string[];
   rows: string[];
@@ -35,16 +36,16 @@ export interface HeatmapData {
 export function heatmapData(grid: Pick<GridDto, 'axes' | 'cells'>, figure: GridFigure, xAxis: number, yAxis: number | null, axisLabel: (key: string) => string): HeatmapData {
   const xa = grid.axes[xAxis]!;
   const ya = yAxis === null ? null : grid.axes[yAxis]!;
-  const sums = new Map<string, { sum: number; n: number; of: number }>();
+  const sums = new Map<string, { sum: number; n: number; of: number; values: number[] }>();
   let filled = 0;
   for (const cell of grid.cells) {
     const x = cell.coords[xAxis] ?? 0;
     const y = yAxis === null ? 0 : cell.coords[yAxis] ?? 0;
     const key = `${x},${y}`;
-    const acc = sums.get(key) ?? { sum: 0, n: 0, of: 0 };
+    const acc = sums.get(key) ?? { sum: 0, n: 0, of: 0, values: [] };
     acc.of += 1;
     const v = cellFigure(cell, figure);
-    if (v !== null) { acc.sum += v; acc.n += 1; filled += 1; }
+    if (v !== null) { acc.sum += v; acc.n += 1; acc.values.push(v); filled += 1; }
     sums.set(key, acc);
   }
   const cells: HeatCell[] = [];
@@ -52,7 +53,8 @@ export function heatmapData(grid: Pick<GridDto, 'axes' | 'cells'>, figure: GridF
     if (acc.n === 0) continue;
     const [x, y] = key.split(',').map(Number) as [number, number];
     const value = acc.sum / acc.n;
-    cells.push({ x, y, value, goodness: goodness(value, figure), runs: acc.n, of: acc.of });
+    const se = acc.n < 2 ? null : Math.sqrt(acc.values.reduce((a, v) => a + (v - value) ** 2, 0) / (acc.n - 1) / acc.n);
+    cells.push({ x, y, value, goodness: goodness(value, figure), runs: acc.n, of: acc.of, se });
   }
   return {
     columns: xa.values.map(gridValueLabel),

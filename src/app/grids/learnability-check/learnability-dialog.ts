@@ -24,7 +24,7 @@ export interface LearnabilityDialogData { benchId: string; corpusId: string; cor
       <p>Trains {{ runCount }} models {{ placement() === 'runners' ? 'on the runners' : "in this tab's queue" }} with the same budget: character n-grams of order
         {{ orders.join(', ') }}, and a teacher-forced GRU and a stochastic state-space model at state sizes {{ sizes.join(', ') }}.
         The verdict table says how far each is from the best n-gram and whether the state-space model is on par with the GRU
-        (within {{ tolerance }} bits/char) at each size.</p>
+        (within {{ tolerance }} bits/char, the end of each word counted as one character) at each size.</p>
       <mat-form-field class="budget">
         <mat-label>Training steps per model</mat-label>
         <input matInput type="number" [formControl]="budget" />

@@ -12,20 +12,22 @@ import { STATUS_LABELS } from '../../runs/run-labels';
     <div class="nw-card">
       <p class="lead">
         @if (verdict().ngramFloor; as f) {
-          Best n-gram: order {{ f.order }} reaches <span class="nw-num" data-testid="best-ngram">{{ f.bitsPerChar | number: '1.3-3' }}</span><span class="nw-unit">bits/char</span>
+          Best n-gram: order {{ f.order }} reaches <span class="nw-num" data-testid="best-ngram">{{ f.bitsPerChar | number: '1.3-3' }}</span><span class="nw-unit">bits/char (end-of-word counted), exact</span>
           (a reference to beat, not a limit: a model with a state can go below it).
         } @else { The best n-gram is known once the n-gram runs have finished. }
         Every model trained for {{ verdict().budgetSteps | number }} steps. @if (!verdict().complete) { <strong>Still training: figures fill in as runs end.</strong> }
       </p>
       <div class="tables">
         <table aria-label="Bits per character of every model" data-testid="verdict-models">
-          <thead><tr><th>Model</th><th>Status</th><th class="nw-num">Held-out</th><th class="nw-num">Gap to best n-gram</th></tr></thead>
+          <thead><tr><th>Model</th><th>Status</th><th>Figure</th><th class="nw-num">Held-out</th><th class="nw-num">Per word</th><th class="nw-num">Gap to best n-gram</th></tr></thead>
           <tbody>
             @for (r of verdict().rows; track r.model) {
               <tr>
                 <td>{{ r.model }}</td>
                 <td>{{ r.status ? statusLabels[r.status] : '(deleted)' }}</td>
+                <td data-testid="verdict-kind">{{ r.family === 'ssm' ? 'bound' : 'exact' }}</td>
                 <td class="nw-num">@if (r.bitsPerChar !== null) { {{ r.bitsPerChar | number: '1.3-3' }}<span class="nw-unit">bits/char</span> } @else { — }</td>
+                <td class="nw-num">@if (r.bitsPerWord != null) { {{ r.bitsPerWord | number: '1.2-2' }}<span class="nw-unit">bits/word</span> } @else { — }</td>
                 <td class="nw-num">@if (r.gapToNgramFloor !== null) { {{ r.gapToNgramFloor >= 0 ? '+' : '' }}{{ r.gapToNgramFloor | number: '1.3-3' }}<span class="nw-unit">bits/char</span> } @else { — }</td>
               </tr>
             }
@@ -46,9 +48,10 @@ import { STATUS_LABELS } from '../../runs/run-labels';
           </tbody>
         </table>
       </div>
-      <p class="caption">Held-out bits per character on the validation words, the end of each word counted as one more character
-        (lower is better; exact for the n-gram and the GRU, an upper bound from the importance-weighted bound for the state-space model);
-        a negative gap means the model beats the best n-gram. “On par” means the state-space model is at most {{ verdict().toleranceBits }} bits/char
+      <p class="caption" data-testid="verdict-caption">Held-out costs on the validation words at each run's best validation step:
+        bits per character count the end of each word as one more character (bits/char, end-of-word counted), bits per word stand
+        beside them. Lower is better; exact for the n-gram and the GRU, an upper bound from the importance-weighted bound for the
+        state-space model. The best n-gram is a reference point, not a floor: a negative gap means the model beats it. “On par” means the state-space model is at most {{ verdict().toleranceBits }} bits/char
         above the teacher-forced GRU of the same state size. A short fixed budget favours fast learners: read a “no” as “not at this budget”.</p>
     </div>
   `,

@@ -41,7 +41,7 @@ export class ReportPage {
   protected readonly problem = signal<string | null>(null);
 
   protected readonly runs = computed(() => this.report()?.snapshot.runs ?? []);
-  protected readonly rows = computed(() => compareRows(this.runs()));
+  protected readonly rows = computed(() => compareRows(this.runs(), this.report()?.snapshot.evaluations));
   protected readonly curves = computed(() => this.curvesOf('valid_bound'));
   protected readonly trainCurves = computed(() => this.curvesOf('train_bound'));
   protected readonly evaluation = computed(() => this.report()?.snapshot.evaluation ?? null);
