@@ -20,7 +20,7 @@ const REASONS: Record<CheckpointDto['reason'], string> = { auto: 'autosave', sto
         <thead>
           <tr>
             <th scope="col" class="nw-num">Step</th>
-            <th scope="col" class="nw-num">Bound</th>
+            <th scope="col" class="nw-num" data-testid="checkpoint-figure-head">{{ family() === 'ssm' ? 'Bound' : 'Cross entropy (exact)' }}</th>
             <th scope="col">Why</th>
             <th scope="col" class="nw-num">Size</th>
             <th scope="col" class="nw-num">Saved</th>
@@ -32,7 +32,7 @@ const REASONS: Record<CheckpointDto['reason'], string> = { auto: 'autosave', sto
             <tr>
               <td class="nw-num">{{ c.step | number }}</td>
               <td class="nw-num">
-                @if (c.boundBitsPerChar !== null) { {{ c.boundBitsPerChar | number: '1.3-3' }}<span class="nw-unit">bits/char</span> } @else { — }
+                @if (c.boundBitsPerChar !== null) { {{ c.boundBitsPerChar | number: '1.3-3' }}<span class="nw-unit">bits/char (end-of-word counted)</span> } @else { — }
               </td>
               <td>{{ reasonOf(c) }}</td>
               <td class="nw-num">{{ c.byteSize / 1024 | number: '1.0-0' }}<span class="nw-unit">KiB</span></td>
@@ -65,6 +65,8 @@ const REASONS: Record<CheckpointDto['reason'], string> = { auto: 'autosave', sto
 })
 export class RunCheckpoints {
   readonly checkpoints = input.required<CheckpointDto[]>();
+  /** The run's family: the SSM's figure is a bound, the GRU's and n-gram's exact. */
+  readonly family = input<'ssm' | 'gru' | 'ngram'>('ssm');
   readonly canResume = input(false);
   readonly resumeFrom = output<CheckpointDto>();
   readonly download = output<CheckpointDto>();

@@ -97,6 +97,18 @@ describe('RunView for a run trained by runners', { timeout: 30_000 }, () => {
     expect(text('runner-note')).toBe('The runner saves a checkpoint first.');
   });
 
+  it('never calls a GRU run\'s figures a bound and gives its best validation per word, marked exact', async () => {
+    const { fixture, text, watches } = await setUp({ ...RUN, summary: { bestValidationBitsPerChar: 2.5, bestValidationBitsPerWord: 13.75, bestValidationStep: 300 } });
+    // The runner reports isBound true for every family; the page still names the GRU's figure exact.
+    watches[0]!.apply([{ event: 'progress', id: null, data: JSON.stringify({ step: 250, steps: 400, stepsPerSecond: 4, etaSeconds: 38, bitsPerChar: 2.5, isBound: true, runnerName: 'box-2', updatedAt: 'x' }) }]);
+    await fixture.whenStable();
+    const page = ((fixture.nativeElement as HTMLElement).textContent ?? '').replace(/\s+/g, ' ');
+    expect(page).not.toMatch(/bound/i);
+    expect(page).not.toMatch(/noise/i);
+    expect(page).toContain('Training cross entropy (exact)');
+    expect(text('checkpoint-figure-head')).toBe('Cross entropy (exact)');
+  });
+
   it('shows a viewer the live run without controls', async () => {
     const { loader, text } = await setUp({ ...RUN, canControl: false });
     expect(text('runner-where')).toContain('Training on box-2');
