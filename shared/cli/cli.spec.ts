@@ -41,9 +41,18 @@ describe('command line (in process)', () => {
     const metrics = JSON.parse(readFileSync(res.metricsPath, 'utf8'));
     expect(metrics.curve).toHaveLength(3);
     expect(metrics.validation.at(-1).bitsPerChar).toBeGreaterThan(0);
+    // One sign convention: every figure a positive cost; the SSM's training figures are bounds, its held-out ones estimates.
+    expect(metrics.units.bitsPerChar).toBe('bits/char (end-of-word counted)');
+    expect(metrics.curve.every((p: { bitsPerChar: number; figure: string }) => p.bitsPerChar > 0 && p.figure === 'bound')).toBe(true);
+    expect(metrics.validation.every((v: { exact: boolean; bitsPerWord: number }) => !v.exact && v.bitsPerWord > 0)).toBe(true);
 
     const gru = await runTraining(parseTrainArgs(['--corpus', corpus, '--model', 'gru', '--steps', '3', '--out', join(dir, 'gru'), ...small])!, quietSink);
     expect(decodeCheckpoint(new Uint8Array(readFileSync(gru.checkpointPath))).family).toBe('gru');
+    // The GRU's figures are exact, never labelled bounds, and positive.
+    const gruMetrics = JSON.parse(readFileSync(gru.metricsPath, 'utf8'));
+    expect(gruMetrics.curve.every((p: { bitsPerChar: number; figure: string }) => p.bitsPerChar > 0 && p.figure === 'exact')).toBe(true);
+    expect(gruMetrics.validation.every((v: { exact: boolean }) => v.exact)).toBe(true);
+    expect(JSON.stringify(gruMetrics.curve)).not.toMatch(/bound/);
 
     const { output, table } = await runEvaluation(parseEvaluateArgs([res.checkpointPath, ...evalArgs, '--baseline', gru.checkpointPath])!);
     for (const label of ['Tight estimate', 'Sequence cross entropy', 'Corpus entropy H(p_data)', 'KL gap', 'Noise mutual information',

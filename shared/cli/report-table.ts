@@ -41,8 +41,8 @@ export function reportTable(out: EvaluationOutput): string {
   if (r.family === 'ssm') {
     const t = r.tight;
     const e = t.standardError;
-    rows.push([`Tight estimate (IWAE, K = ${t.k}, ${t.repeats} repeats)`, `${f(t.bitsPerChar)}${e ? ` ${se(e.bitsPerChar.total, 3)}` : ''}`, BPC]);
-    rows.push([`Tight estimate (IWAE, K = ${t.k}, ${t.repeats} repeats)`, `${f(t.bitsPerWord, 2)}${e ? ` ${se(e.bitsPerWord.total, 2)}` : ''}`, 'bits/word']);
+    rows.push([`Tight estimate, a bound (IWAE, K = ${t.k}, ${t.repeats} repeats)`, `${f(t.bitsPerChar)}${e ? ` ${se(e.bitsPerChar.total, 3)}` : ''}`, BPC]);
+    rows.push([`Tight estimate, a bound (IWAE, K = ${t.k}, ${t.repeats} repeats)`, `${f(t.bitsPerWord, 2)}${e ? ` ${se(e.bitsPerWord.total, 2)}` : ''}`, 'bits/word']);
     if (e) {
       rows.push(['  of which from the per-word spread', f(e.bitsPerChar.words, 4), BPC]);
       rows.push(['  of which from the repeats', f(e.bitsPerChar.repeats, 4), BPC]);

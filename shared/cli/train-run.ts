@@ -23,7 +23,15 @@ export interface CurvePoint { step: number; bitsPerChar: number; figure: 'bound'
 /** Held-out figure (positive costs, bits/char with end-of-word counted): `exact` for GRU and n-gram, an IWAE estimate with K = k for the SSM. */
 export interface ValidationPoint { step: number; bitsPerWord: number; bitsPerChar: number; k: number; exact: boolean; words: number }
 
+/** What the figures of metrics.json are: one sign convention (positive costs) and the units. */
+export const METRICS_UNITS = {
+  bitsPerChar: 'bits/char (end-of-word counted)',
+  bitsPerWord: 'bits/word',
+  convention: 'positive costs (minus log-likelihood in bits): lower is better; figure "exact" (GRU, n-gram) is never a bound',
+} as const;
+
 export interface TrainMetrics {
+  units: typeof METRICS_UNITS;
   model: TrainOptions['model'];
   corpus: string;
   options: Omit<TrainOptions, 'quiet'>;
@@ -118,7 +126,7 @@ export async function runTraining(o: TrainOptions, progress: ProgressSink = proc
   const seconds = (performance.now() - t0) / 1000;
   const { quiet: _q, ...options } = o;
   const metrics: TrainMetrics = {
-    model: o.model, corpus: o.corpus, options, backend, parameterCount,
+    units: METRICS_UNITS, model: o.model, corpus: o.corpus, options, backend, parameterCount,
     vocabulary: { types: data.words.length, train: parts.train.length, validation: parts.validation.length, test: parts.test.length, alphabetSize: alphabet.size },
     steps, seconds, wordsPerSecond: seconds > 0 ? words / seconds : 0, curve, validation, checkpoint: checkpointPath,
   };
