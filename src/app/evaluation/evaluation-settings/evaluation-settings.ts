@@ -79,7 +79,7 @@ const MORE = ['maxHeldOut', 'detailWords', 'crossEntropyK', 'tMax', 'particles',
       <mat-form-field>
         <mat-label>Repeats</mat-label>
         <input matInput type="number" formControlName="repeats" min="1" max="10" />
-        <mat-hint>for the spread, 1–10</mat-hint>
+        <mat-hint>for the standard error between repeats, 1–10</mat-hint>
         <mat-error>Give 1 to 10 repeats.</mat-error>
       </mat-form-field>
       <mat-form-field>
