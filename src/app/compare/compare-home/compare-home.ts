@@ -23,8 +23,8 @@ import { ReportsApi } from '../../reports/reports-api';
 
 export const CURVE_CHOICES = [
   // One series holds every family's figure: a bound for the state-space model, exact for GRU and n-gram.
-  { series: 'train_bound', label: 'Training figure (state-space: bound; GRU: exact)', unit: 'bits/char (end-of-word counted)' },
-  { series: 'valid_bound', label: 'Validation figure (state-space: bound; GRU: exact)', unit: 'bits/char (end-of-word counted)' },
+  { series: 'train_bound', label: 'Training figure', unit: 'bits/char (end-of-word counted)' },
+  { series: 'valid_bound', label: 'Validation figure', unit: 'bits/char (end-of-word counted)' },
   { series: 'noise_mi', label: 'Mean noise mutual information', unit: 'bits' },
   { series: 'obs_entropy', label: 'Observation entropy', unit: 'bits' },
 ] as const;
