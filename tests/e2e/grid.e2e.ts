@@ -106,6 +106,8 @@ async function gridStory(page: Page, problems: string[]): Promise<void> {
   await table.waitFor();
   const sizeRow = table.getByRole('row', { name: /^State size/ });
   assert.match((await sizeRow.textContent()) ?? '', /differs/, 'the state size row is marked as differing');
+  const kindRow = table.getByRole('row', { name: /^Figures are/ });
+  assert.match((await kindRow.textContent()) ?? '', /exact\s+exact/, 'both GRU runs\' figures are marked exact');
   const seedRow = table.getByRole('row', { name: /^Seed/ });
   assert.doesNotMatch((await seedRow.textContent()) ?? '', /differs/, 'the seed row is the same for both runs');
   await page.waitForTimeout(500);
@@ -127,8 +129,11 @@ async function gridStory(page: Page, problems: string[]): Promise<void> {
   const csv = await api<string>(`/benches/${bench.id}/reports/${reportId}/export.csv`, token);
   const records = parseCsv(csv);
   assert.deepEqual(records[0], ['section', 'name', 'setting', 'value', 'unit']);
-  const bestOfA = records.find((f) => f[1] === 'best validation bound' && f[2] === a.run!.name);
-  assert.ok(bestOfA, 'the CSV holds the best validation bound of the first run');
+  // A GRU's figure is exact: the CSV names it so, never a bound, in bits/char with the end of word counted.
+  const bestOfA = records.find((f) => f[1] === 'best validation cross entropy (exact)' && f[2] === a.run!.name);
+  assert.ok(bestOfA, 'the CSV holds the best validation cross entropy of the first run');
+  assert.equal(bestOfA[4], 'bits/char (end-of-word counted)');
+  assert.ok(!records.some((f) => /bound/.test(f[1]!)), 'no GRU figure is called a bound');
   assert.ok(Math.abs(Number(bestOfA[3]) - (a.best ?? NaN)) < 1e-9, `CSV ${bestOfA[3]} equals the grid's figure ${a.best}`);
   await page.emulateMedia({ media: 'print' });
   await screenshot(page, 'compare-03-report-print');
