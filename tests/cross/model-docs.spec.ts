@@ -210,6 +210,9 @@ describe('CHECKPOINT-FORMAT.md against the model code', () => {
     expect(initOf('prop.b2')).toEqual([0, 0, 0, raw1, raw1, raw1]);
     expect(initOf('inf/0.diag.net.b2')).toEqual([0, 0, 0, raw1, raw1, raw1]);
     expect(initOf('gen/1.tril.net.b2')).toEqual([0, 0, 0, raw1, raw1, raw1, 0, 0, 0]);
+    // The coupling scale starts at 1 and the learned h0 at 0.
+    expect(specs['gen/0.coupling.scale']!.init).toEqual({ kind: 'const', value: 1 });
+    expect(specs['h0']!.init).toEqual({ kind: 'const', value: 0 });
     // With an observation MLP (O > 0) the linear layer gives way to obs.w1/b1/w2/b2.
     const mlp = ssmParamSpecs({ ...settings, observationHidden: 2 });
     expect(Object.keys(mlp).filter((k) => k.startsWith('obs.')).sort()).toEqual(['obs.b1', 'obs.b2', 'obs.w1', 'obs.w2']);
