@@ -91,6 +91,7 @@ export class CouplingFlow implements FlowLayer {
       return { s: tf.mul(tf.tanh(sRaw), sScale) as tf.Tensor2D, t };
     };
     return {
+      parts: { kind: 'coupling', dim: d, weights: [wz, w2, b2, scale] },
       forward: (ctxPre, z) => {
         const { s, t } = shiftScale(ctxPre, z, scale);
         return { y: tf.add(tf.mul(z, tf.exp(s)), t) as tf.Tensor2D, logdet: tf.sum(s, 1) };

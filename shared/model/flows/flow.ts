@@ -9,12 +9,12 @@ import type { Rng } from '../../data/random';
 import { ParamSet, prefixSpecs, type NamedWeights, type ParamSpecs } from '../params';
 import { CouplingFlow } from './coupling-flow';
 import { DiagFlow } from './diag-flow';
-import type { FlowDims, FlowForward, FlowInverse, FlowKind, FlowLayer, PreparedLayer } from './flow-layer';
+import type { FlowDims, FlowForward, FlowInverse, FlowKind, FlowLayer, ForwardParts, PreparedLayer } from './flow-layer';
 import { FLOW_KIND_NAMES } from '../settings-rules';
 import { ShiftFlow } from './shift-flow';
 import { TrilFlow } from './tril-flow';
 
-export type { FlowForward, FlowInverse, FlowKind } from './flow-layer';
+export type { FlowForward, FlowInverse, FlowKind, ForwardParts } from './flow-layer';
 
 /** One layer of a flow stack. A flow is described by an array of these, applied in order to z. */
 export interface FlowSpec {
@@ -53,6 +53,8 @@ export interface PreparedFlow {
   readonly contextWidth: number;
   forward(ctxPre: tf.Tensor2D, z: tf.Tensor2D): FlowForward;
   inverse(ctxPre: tf.Tensor2D, y: tf.Tensor2D): FlowInverse;
+  /** Each layer's forward tensors, in stack order (for the hand-written gradient of the inference recurrence). */
+  readonly layers: ForwardParts[];
 }
 
 /** Throws a clear error if `spec` is not a non-empty list of known flow layers. */
@@ -127,6 +129,7 @@ class FlowStack implements ConditionalFlow {
       contextW: single ? first.w : tf.concat(ctx.map((x) => x.w), 1),
       contextB: single ? first.b : tf.concat(ctx.map((x) => x.b)),
       contextWidth: this.dims.hidden * layers.length,
+      layers: layers.map((layer) => layer.parts),
       forward: (ctxPre, z) => {
         const pre = parts(ctxPre);
         let y = z;
