@@ -15,6 +15,7 @@
  * Checked against automatic differentiation of the step-by-step loop in `gru-sequence.spec.ts`.
  */
 import * as tf from '@tensorflow/tfjs-core';
+import { columnSums } from './bias-add';
 
 /**
  * States b_t of the backward GRU, time-major [T, B, H]. `xProj`: input projections x Wx + bx, [T, B, 3H]
@@ -73,13 +74,14 @@ export function backwardGruSequence(xProj: tf.Tensor3D, mask: tf.Tensor3D, wh: t
           const g = (carry ? tf.add(dys[t] as tf.Tensor2D, carry) : dys[t]) as tf.Tensor2D;
           gs[t] = g;
           if (t === T - 1) break; // the state entering the last step is the constant 0
-          const dHp = tf.mul(tf.tile(g, [1, 3]), cHps[t] as tf.Tensor2D);
+          const dHp = tf.mul(tf.concat([g, g, g], 1), cHps[t] as tf.Tensor2D);
           carry = tf.add(tf.mul(g, cB[t] as tf.Tensor2D), tf.matMul(dHp, whT)) as tf.Tensor2D;
         }
-        const G3 = tf.tile(tf.stack(gs), [1, 1, 3]);
+        const G = tf.stack(gs);
+        const G3 = tf.concat([G, G, G], 2);
         const dHpAll = tf.reshape(tf.mul(G3, cHp), [T * B, H3]);
         const dW = tf.matMul(tf.reshape(Pv, [T * B, H]), dHpAll, true, false);
-        const dBias = tf.sum(dHpAll, 0);
+        const dBias = columnSums(dHpAll as tf.Tensor2D);
         return [tf.mul(G3, cX), dW, dBias];
       },
     };

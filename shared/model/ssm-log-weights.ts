@@ -8,6 +8,7 @@
  */
 import * as tf from '@tensorflow/tfjs-core';
 import type { EncodedBatch } from '../data/encode';
+import { addBias } from './bias-add';
 import type { ConditionalFlow } from './flows/flow';
 import { proposalRecurrence } from './ssm-recurrence';
 import type { SsmSettings } from './ssm-settings';
@@ -34,7 +35,7 @@ export function computeLogWeights(
   const inf = m.inferenceFlow.prepare();
   // Rows are k*B + b (sample k of word b); word-level inputs are broadcast over the K samples once per call.
   const enc = m.encodeBackward(batch); // [T, B, H]
-  const bProj = tf.reshape(tf.add(tf.matMul(tf.reshape(enc, [T * B, H]), p('prop.wb')), p('prop.b1')), [T, B, P]);
+  const bProj = tf.reshape(addBias(tf.matMul(tf.reshape(enc, [T * B, H]), p('prop.wb')), p('prop.b1') as tf.Tensor1D), [T, B, P]);
   // Every first-layer term of the step-by-step part that does not depend on h_{t-1}, for all steps at once: the
   // proposal's word-level input (with prop.b1) repeated for the K samples, then the inference flow's first-layer
   // biases. [T, N, P + flow width] (Broadcast onto zeros rather than tf.tile: the gradient of tile is a slice and
@@ -55,7 +56,7 @@ export function computeLogWeights(
   const [hs, proposalLogDets] = tf.split(hl, [d, 1], 2) as [tf.Tensor3D, tf.Tensor3D]; // [T, N, d], [T, N, 1]
   // The generative flow's inverse does not feed the next step: all steps at once, eps_t = f_g^{-1}(h_t; h_{t-1}).
   const hPrev = T === 1 ? tf.reshape(h0, [1, N, d]) : tf.concat([tf.reshape(h0, [1, N, d]), tf.slice(hs, [0, 0, 0], [T - 1, N, d])], 0);
-  const genPre = tf.add(tf.matMul(tf.reshape(hPrev, [T * N, d]), gen.contextW), gen.contextB) as tf.Tensor2D;
+  const genPre = addBias(tf.matMul(tf.reshape(hPrev, [T * N, d]), gen.contextW), gen.contextB);
   const g = gen.inverse(genPre, tf.reshape(hs, [T * N, d]) as tf.Tensor2D);
   // log N(eps_t; 0, I) + logdet_g - log N(xi_t; m, s^2) + logdet_q; the -d/2 log(2 pi) terms cancel:
   // = 0.5 * (|e|^2 - |eps_t|^2) + sum log s + logdet_q + logdet_g   (xi = m + s * e).

@@ -16,6 +16,7 @@
  * Checked against automatic differentiation of the step-by-step code in `ssm-recurrence.spec.ts`.
  */
 import * as tf from '@tensorflow/tfjs-core';
+import { columnSums } from './bias-add';
 import { boundedScale } from './flows/conditioner';
 import type { ForwardParts } from './flows/flow-layer';
 import { forwardStepper, layerBackward, stackCount, stackedLogdet } from './flows/forward-grads';
@@ -130,7 +131,7 @@ export function proposalRecurrence(x: RecurrenceInputs): tf.Tensor3D {
       tf.matMul(rows(HP, d), rows(dPre, C), true, false),
       dPre,
       tf.matMul(rows(A, P), dOut, true, false),
-      tf.sum(dOut, 0),
+      columnSums(dOut),
       ...backs.flatMap((b) => b.weightGrads()),
     ];
   }

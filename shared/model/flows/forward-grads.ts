@@ -19,6 +19,7 @@
  * Checked against automatic differentiation in `ssm-recurrence.spec.ts`.
  */
 import * as tf from '@tensorflow/tfjs-core';
+import { columnSums } from '../bias-add';
 import { boundedScale } from './conditioner';
 import type { ForwardParts } from './flow-layer';
 
@@ -102,7 +103,7 @@ const tanhSlope = (x: tf.Tensor): tf.Tensor => tf.sub(1, tf.square(x));
 /** `sum_t a_t^T g_t` and `sum_t g_t` for the second layer of a conditioner: [A stack, list of g per step]. */
 function outputLayerGrads(a: tf.Tensor3D, gs: tf.Tensor2D[]): tf.Tensor[] {
   const g = rows(tf.stack(gs));
-  return [tf.matMul(rows(a), g, true, false), tf.sum(g, 0)];
+  return [tf.matMul(rows(a), g, true, false), columnSums(g)];
 }
 
 /** The backward pass of a layer from its stacks (the forward's `stacks()`) and the weights it ran with. */
@@ -131,7 +132,7 @@ export function layerBackward(parts: ForwardParts, weights: tf.Tensor[], stacks:
       },
       weightGrads() {
         const dwz = tf.matMul(rows(Z), rows(tf.stack(dPres)), true, false);
-        const dScale = tf.sum(rows(tf.mul(tf.stack(dss), TH)), 0);
+        const dScale = columnSums(rows(tf.mul(tf.stack(dss), TH)));
         return [dwz, ...outputLayerGrads(A, dOuts), dScale];
       },
     };
