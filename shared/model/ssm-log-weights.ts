@@ -56,8 +56,7 @@ export function computeLogWeights(
   const [hs, proposalLogDets] = tf.split(hl, [d, 1], 2) as [tf.Tensor3D, tf.Tensor3D]; // [T, N, d], [T, N, 1]
   // The generative flow's inverse does not feed the next step: all steps at once, eps_t = f_g^{-1}(h_t; h_{t-1}).
   const hPrev = T === 1 ? tf.reshape(h0, [1, N, d]) : tf.concat([tf.reshape(h0, [1, N, d]), tf.slice(hs, [0, 0, 0], [T - 1, N, d])], 0);
-  const genPre = addBias(tf.matMul(tf.reshape(hPrev, [T * N, d]), gen.contextW), gen.contextB);
-  const g = gen.inverse(genPre, tf.reshape(hs, [T * N, d]) as tf.Tensor2D);
+  const g = gen.inverseFromContext(tf.reshape(hPrev, [T * N, d]) as tf.Tensor2D, tf.reshape(hs, [T * N, d]) as tf.Tensor2D);
   // log N(eps_t; 0, I) + logdet_g - log N(xi_t; m, s^2) + logdet_q; the -d/2 log(2 pi) terms cancel:
   // = 0.5 * (|e|^2 - |eps_t|^2) + sum log s + logdet_q + logdet_g   (xi = m + s * e).
   const quadratic = tf.mul(tf.sub(tf.sum(tf.square(eps), 2), tf.reshape(tf.sum(tf.square(g.z), 1), [T, N])), 0.5);

@@ -6,6 +6,7 @@
  */
 import * as tf from '@tensorflow/tfjs-core';
 import type { Rng } from '../../data/random';
+import { addBias } from '../bias-add';
 import { ParamSet, prefixSpecs, type NamedWeights, type ParamSpecs } from '../params';
 import { CouplingFlow } from './coupling-flow';
 import { DiagFlow } from './diag-flow';
@@ -53,6 +54,11 @@ export interface PreparedFlow {
   readonly contextWidth: number;
   forward(ctxPre: tf.Tensor2D, z: tf.Tensor2D): FlowForward;
   inverse(ctxPre: tf.Tensor2D, y: tf.Tensor2D): FlowInverse;
+  /**
+   * The inverse given c itself: each layer's ctxPre from its own matmul with c (for many rows this avoids
+   * splitting one wide ctxPre, and concatenating its gradient, at the price of one matmul per layer).
+   */
+  inverseFromContext(c: tf.Tensor2D, y: tf.Tensor2D): FlowInverse;
   /** Each layer's forward tensors, in stack order (for the hand-written gradient of the inference recurrence). */
   readonly layers: ForwardParts[];
 }
@@ -141,18 +147,19 @@ class FlowStack implements ConditionalFlow {
         });
         return { y, logdet: logdet as unknown as tf.Tensor1D };
       },
-      inverse: (ctxPre, y) => {
-        const pre = parts(ctxPre);
-        let z = y;
-        let logdet: tf.Tensor1D | null = null;
-        for (let i = layers.length - 1; i >= 0; i--) {
-          const r = (layers[i] as PreparedLayer).inverse(pre[i] as tf.Tensor2D, z);
-          z = r.z;
-          logdet = logdet ? (tf.add(logdet, r.logdet) as tf.Tensor1D) : r.logdet;
-        }
-        return { z, logdet: logdet as unknown as tf.Tensor1D };
-      },
+      inverse: (ctxPre, y) => inverseLayers(parts(ctxPre), y),
+      inverseFromContext: (c, y) => inverseLayers(ctx.map((x) => addBias(tf.matMul(c, x.w), x.b)), y),
     };
+    function inverseLayers(pre: tf.Tensor2D[], y: tf.Tensor2D): FlowInverse {
+      let z = y;
+      let logdet: tf.Tensor1D | null = null;
+      for (let i = layers.length - 1; i >= 0; i--) {
+        const r = (layers[i] as PreparedLayer).inverse(pre[i] as tf.Tensor2D, z);
+        z = r.z;
+        logdet = logdet ? (tf.add(logdet, r.logdet) as tf.Tensor1D) : r.logdet;
+      }
+      return { z, logdet: logdet as unknown as tf.Tensor1D };
+    }
   }
 
   forward(c: tf.Tensor2D, z: tf.Tensor2D): FlowForward {
