@@ -58,15 +58,18 @@ export function proposalRecurrence(x: RecurrenceInputs): tf.Tensor3D {
     const noise = tf.unstack(x.eps) as tf.Tensor2D[];
     const kept: tf.Tensor2D[][] = [[], [], [], []]; // h_{t-1}, a, p, s
     const hs: tf.Tensor2D[] = [];
+    // Without coupling layers every first layer's activation is tanh of its part of pre: one tanh for all.
+    const tanhAll = x.layers.every((l) => l.kind !== 'coupling');
     let hPrev = h0;
     for (let t = 0; t < T; t++) {
       const pre = tf.add(tf.matMul(hPrev, w), biasSteps[t] as tf.Tensor2D) as tf.Tensor2D;
-      const [preQ, ...ctx] = tf.split(pre, splits, 1) as tf.Tensor2D[];
-      const a = tf.tanh(preQ as tf.Tensor2D) as tf.Tensor2D;
+      // [pre_q, ctxPre...], or their tanh when every layer takes tanh(ctxPre) (then ctxPre itself is not needed).
+      const [partQ, ...ctx] = tf.split(tanhAll ? tf.tanh(pre) : pre, splits, 1) as tf.Tensor2D[];
+      const a = (tanhAll ? partQ : tf.tanh(partQ as tf.Tensor2D)) as tf.Tensor2D;
       const [m, p] = tf.split(tf.add(tf.matMul(a, w2), b2), 2, 1) as [tf.Tensor2D, tf.Tensor2D];
       const s = boundedScale(p) as tf.Tensor2D;
       let y = tf.add(m, tf.mul(s, noise[t] as tf.Tensor2D)) as tf.Tensor2D;
-      steppers.forEach((st, i) => (y = st.forward(ctx[i] as tf.Tensor2D, y)));
+      steppers.forEach((st, i) => (y = st.forward(ctx[i] as tf.Tensor2D, y, tanhAll ? ctx[i] : undefined)));
       [hPrev, a, p, s].forEach((v, i) => kept[i]?.push(v));
       hs.push(y);
       hPrev = y;
@@ -90,16 +93,15 @@ export function proposalRecurrence(x: RecurrenceInputs): tf.Tensor3D {
     const flat = saved.slice(7, 7 + counts.reduce((a, b) => a + b, 0));
     const lw = layerWeights(flat);
     let at = 7 + flat.length;
+    const [dH, dL] = tf.split(dy, [d, 1], 2) as [tf.Tensor3D, tf.Tensor3D];
     const backs = x.layers.map((parts, i) => {
       const n = stackCount(parts);
-      return layerBackward(parts, lw[i] as tf.Tensor[], saved.slice(at, (at += n)) as tf.Tensor3D[]);
+      return layerBackward(parts, lw[i] as tf.Tensor[], saved.slice(at, (at += n)) as tf.Tensor3D[], dL);
     });
-    const [dH, dL] = tf.split(dy, [d, 1], 2) as [tf.Tensor3D, tf.Tensor3D];
     const dHs = tf.unstack(dH) as tf.Tensor2D[];
-    const dLs = tf.unstack(dL) as tf.Tensor2D[];
     const slope = tf.sigmoid(PQ);
     const cEps = tf.unstack(tf.mul(EPS, slope)) as tf.Tensor2D[];
-    const cL = tf.unstack(tf.div(slope, S)) as tf.Tensor2D[];
+    const dLcL = tf.unstack(tf.mul(dL, tf.div(slope, S))) as tf.Tensor2D[]; // dL / s sigmoid(p), all steps
     const cA = tf.unstack(tf.sub(1, tf.square(A))) as tf.Tensor2D[];
     const [w2T, wT] = [tf.transpose(w2), tf.transpose(w)];
     const dOuts: tf.Tensor2D[] = new Array(T);
@@ -107,14 +109,13 @@ export function proposalRecurrence(x: RecurrenceInputs): tf.Tensor3D {
     let carry: tf.Tensor2D | null = null;
     for (let t = T - 1; t >= 0; t--) {
       let g = (carry ? tf.add(dHs[t] as tf.Tensor2D, carry) : dHs[t]) as tf.Tensor2D;
-      const dl = dLs[t] as tf.Tensor2D;
       const dCtx: tf.Tensor2D[] = new Array(backs.length);
       for (let i = backs.length - 1; i >= 0; i--) {
-        const r = (backs[i] as ReturnType<typeof layerBackward>).step(t, g, dl);
+        const r = (backs[i] as ReturnType<typeof layerBackward>).step(t, g);
         g = r.dz;
         dCtx[i] = r.dCtx;
       }
-      const dp = tf.add(tf.mul(g, cEps[t] as tf.Tensor2D), tf.mul(dl, cL[t] as tf.Tensor2D));
+      const dp = tf.add(tf.mul(g, cEps[t] as tf.Tensor2D), dLcL[t] as tf.Tensor2D);
       const dOut = tf.concat([g, dp], 1) as tf.Tensor2D;
       const dPreQ = tf.mul(tf.matMul(dOut, w2T), cA[t] as tf.Tensor2D) as tf.Tensor2D;
       const dPre = (dCtx.length ? tf.concat([dPreQ, ...dCtx], 1) : dPreQ) as tf.Tensor2D;

@@ -25,15 +25,16 @@ import type { ForwardParts } from './flow-layer';
 
 /** Runs one layer forward step by step and keeps what its backward pass needs. */
 export interface ForwardStepper {
-  forward(ctxPre: tf.Tensor2D, z: tf.Tensor2D): tf.Tensor2D;
+  /** `activated`: tanh(ctxPre) when the caller has it already (not for coupling layers, whose tanh sees z too). */
+  forward(ctxPre: tf.Tensor2D, z: tf.Tensor2D, activated?: tf.Tensor2D): tf.Tensor2D;
   /** The kept tensors stacked over the steps so far, [T, N, .] each (call after the loop). */
   stacks(): tf.Tensor3D[];
 }
 
 /** The backward pass of one layer over all steps (call `step` for t = T-1 down to 0). */
 export interface LayerBackward {
-  /** Gradients reaching z and ctxPre at step t, given those reaching y ([N, d]) and the log-det ([N, 1]). */
-  step(t: number, dy: tf.Tensor2D, dl: tf.Tensor2D): { dz: tf.Tensor2D; dCtx: tf.Tensor2D };
+  /** Gradients reaching z and ctxPre at step t, given the gradient reaching y ([N, d]). */
+  step(t: number, dy: tf.Tensor2D): { dz: tf.Tensor2D; dCtx: tf.Tensor2D };
   /** Gradients of `parts.weights` (same order and shapes), from all steps at once. */
   weightGrads(): tf.Tensor[];
 }
@@ -65,8 +66,8 @@ export function forwardStepper(parts: ForwardParts, weights: tf.Tensor[]): Forwa
   }
   const [w2, b2] = weights as [tf.Tensor2D, tf.Tensor1D];
   return {
-    forward(ctxPre, z) {
-      const a = tf.tanh(ctxPre) as tf.Tensor2D;
+    forward(ctxPre, z, activated) {
+      const a = activated ?? (tf.tanh(ctxPre) as tf.Tensor2D);
       const out = tf.add(tf.matMul(a, w2), b2) as tf.Tensor2D;
       if (parts.kind === 'shift') {
         keep(a);
@@ -106,8 +107,12 @@ function outputLayerGrads(a: tf.Tensor3D, gs: tf.Tensor2D[]): tf.Tensor[] {
   return [tf.matMul(rows(a), g, true, false), columnSums(g)];
 }
 
-/** The backward pass of a layer from its stacks (the forward's `stacks()`) and the weights it ran with. */
-export function layerBackward(parts: ForwardParts, weights: tf.Tensor[], stacks: tf.Tensor3D[]): LayerBackward {
+/**
+ * The backward pass of a layer from its stacks (the forward's `stacks()`), the weights it ran with and the
+ * gradient reaching its log-det at every step, `dL` [T, N, 1] (known before the loop: terms in dl are taken
+ * for all steps at once).
+ */
+export function layerBackward(parts: ForwardParts, weights: tf.Tensor[], stacks: tf.Tensor3D[], dL: tf.Tensor3D): LayerBackward {
   const T = stacks[0]?.shape[0] as number;
   const dOuts: tf.Tensor2D[] = new Array(T);
   if (parts.kind === 'coupling') {
@@ -117,12 +122,13 @@ export function layerBackward(parts: ForwardParts, weights: tf.Tensor[], stacks:
     const cs = tf.unstack(tf.mul(tanhSlope(TH), scale)) as tf.Tensor2D[];
     const ca = tf.unstack(tanhSlope(A)) as tf.Tensor2D[];
     const es = tf.unstack(E) as tf.Tensor2D[];
+    const dls = tf.unstack(dL) as tf.Tensor2D[];
     const [w2T, wzT] = [tf.transpose(w2), tf.transpose(wz)];
     const dss: tf.Tensor2D[] = new Array(T);
     const dPres: tf.Tensor2D[] = new Array(T);
     return {
-      step(t, dy, dl) {
-        const ds = tf.add(tf.mul(dy, ze[t] as tf.Tensor2D), dl) as tf.Tensor2D;
+      step(t, dy) {
+        const ds = tf.add(tf.mul(dy, ze[t] as tf.Tensor2D), dls[t] as tf.Tensor2D) as tf.Tensor2D;
         const dOut = tf.concat([tf.mul(ds, cs[t] as tf.Tensor2D), dy], 1) as tf.Tensor2D;
         const dPre = tf.mul(tf.matMul(dOut, w2T), ca[t] as tf.Tensor2D) as tf.Tensor2D;
         dss[t] = ds;
@@ -149,12 +155,12 @@ export function layerBackward(parts: ForwardParts, weights: tf.Tensor[], stacks:
   const [, P, S, Z] = stacks as [tf.Tensor3D, tf.Tensor3D, tf.Tensor3D, tf.Tensor3D];
   const slope = tf.sigmoid(P);
   const c1 = tf.unstack(tf.mul(Z, slope)) as tf.Tensor2D[];
-  const c0 = tf.unstack(tf.div(slope, S)) as tf.Tensor2D[];
+  const dlc0 = tf.unstack(tf.mul(dL, tf.div(slope, S))) as tf.Tensor2D[];
   const ss = tf.unstack(S) as tf.Tensor2D[];
   const lowerParts = parts.kind === 'tril' && parts.constants ? lowerBackward(parts.constants, stacks) : null;
   return {
-    step(t, dy, dl) {
-      const dp = tf.add(tf.mul(dy, c1[t] as tf.Tensor2D), tf.mul(dl, c0[t] as tf.Tensor2D)) as tf.Tensor2D;
+    step(t, dy) {
+      const dp = tf.add(tf.mul(dy, c1[t] as tf.Tensor2D), dlc0[t] as tf.Tensor2D) as tf.Tensor2D;
       const dz = tf.mul(dy, ss[t] as tf.Tensor2D) as tf.Tensor2D;
       if (!lowerParts) return { dz, dCtx: finish(t, tf.concat([dy, dp], 1) as tf.Tensor2D) };
       const { dLower, dzLower } = lowerParts(t, dy);
