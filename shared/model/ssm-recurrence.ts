@@ -75,6 +75,7 @@ export function proposalRecurrence(x: RecurrenceInputs): tf.Tensor3D {
       hPrev = y;
     }
     const [HP, A, PQ, S] = kept.map((list) => tf.stack(list)) as tf.Tensor3D[];
+    tf.dispose([...(kept[1] as tf.Tensor[]), ...(kept[2] as tf.Tensor[]), ...(kept[3] as tf.Tensor[])]); // a, p, s per step: only the stacks are used
     const layerStacks = steppers.map((st) => st.stacks());
     let logdets = tf.sum(tf.log(S as tf.Tensor3D), 2) as tf.Tensor2D;
     x.layers.forEach((parts, i) => {

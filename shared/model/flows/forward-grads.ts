@@ -27,7 +27,7 @@ import type { ForwardParts } from './flow-layer';
 export interface ForwardStepper {
   /** `activated`: tanh(ctxPre) when the caller has it already (not for coupling layers, whose tanh sees z too). */
   forward(ctxPre: tf.Tensor2D, z: tf.Tensor2D, activated?: tf.Tensor2D): tf.Tensor2D;
-  /** The kept tensors stacked over the steps so far, [T, N, .] each (call after the loop). */
+  /** The kept tensors stacked over the steps so far, [T, N, .] each (call once, after the loop; frees the per-step ones). */
   stacks(): tf.Tensor3D[];
 }
 
@@ -48,7 +48,11 @@ export function stackCount(parts: ForwardParts): number {
 export function forwardStepper(parts: ForwardParts, weights: tf.Tensor[]): ForwardStepper {
   const kept: tf.Tensor2D[][] = Array.from({ length: stackCount(parts) }, () => []);
   const keep = (...ts: tf.Tensor2D[]) => ts.forEach((t, i) => kept[i]?.push(t));
-  const stacks = () => kept.map((list) => tf.stack(list) as tf.Tensor3D);
+  const stacks = () => {
+    const out = kept.map((list) => tf.stack(list) as tf.Tensor3D);
+    tf.dispose(kept.flat()); // per-step intermediates of this layer only (never an input of the op)
+    return out;
+  };
   const d = parts.dim;
   if (parts.kind === 'coupling') {
     const [wz, w2, b2, scale] = weights as [tf.Tensor2D, tf.Tensor2D, tf.Tensor1D, tf.Tensor1D];
