@@ -1,4 +1,4 @@
-/** Profile of the reference training step: CPU ms/step and kernels per step by kernel name (tf.profile). `npx tsx bench/step-profile.ts` (STEPS=n, MM=1 for matmul shapes). */
+/** Profile of the reference training step: CPU ms/step and kernels per step by kernel name (tf.profile). `npx tsx bench/step-profile.ts` (STEPS=n, MM=1 for matmul shapes, SHAPES=Sum,Tile for the input shapes of those kernels). */
 import * as tf from '@tensorflow/tfjs-core';
 import { readFileSync } from 'node:fs';
 import { createBatcher } from '../shared/data/batcher';
@@ -29,3 +29,4 @@ for (const k of info.kernels) { const e = (by[k.name] ??= { n: 0, ms: 0 }); e.n+
 console.log('kernels', info.kernels.length);
 for (const [k, e] of Object.entries(by).sort((a, b) => b[1].ms - a[1].ms)) console.log(k.padEnd(22), String(e.n).padStart(6), e.ms.toFixed(1));
 if (process.env.MM) { const mm: Record<string, {n:number,ms:number}> = {}; for (const k of info.kernels) if (k.name==='BatchMatMul'||k.name==='_FusedMatMul') { const key=JSON.stringify(k.inputShapes)+JSON.stringify((k as any).extraInfo??''); const e=(mm[key]??={n:0,ms:0}); e.n++; e.ms+=Number(k.kernelTimeMs)||0;} for (const [k,e] of Object.entries(mm).sort((a,b)=>b[1].ms-a[1].ms).slice(0,20)) console.log(k, e.n, e.ms.toFixed(1)); }
+if (process.env.SHAPES) { const want = process.env.SHAPES.split(','); const sh: Record<string, {n:number,ms:number}> = {}; for (const k of info.kernels) if (want.includes(k.name)) { const key=k.name+' '+JSON.stringify(k.inputShapes); const e=(sh[key]??={n:0,ms:0}); e.n++; e.ms+=Number(k.kernelTimeMs)||0;} for (const [k,e] of Object.entries(sh).sort((a,b)=>b[1].ms-a[1].ms).slice(0,25)) console.log(k, e.n, e.ms.toFixed(1)); }

@@ -16,6 +16,8 @@ import * as tf from '@tensorflow/tfjs-core';
 import type { EncodedBatch } from '../data/encode';
 import { createRng, type Rng } from '../data/random';
 import { Adam, flattenTensors } from './adam';
+import { addBias } from './bias-add';
+import { gruLmSequence } from './gru-lm-sequence';
 import { NonFiniteLossError } from './trainer';
 import { ParamSet, glorot, zeros, type NamedWeights, type ParamSpecs } from './params';
 
@@ -80,24 +82,13 @@ export class GruLanguageModel {
       const d = this.settings.stateSize;
       const prev = new Int32Array(b * t); // w_{t-1}; w_0 = EOW = 0
       for (let i = 0; i < b; i++) prev.set(batch.ids.subarray(i * t, i * t + t - 1), i * t + 1);
-      const table = tf.add(tf.matMul(this.w('emb') as tf.Tensor2D, this.w('Wx') as tf.Tensor2D), this.w('bx'));
+      const table = addBias(tf.matMul(this.w('emb') as tf.Tensor2D, this.w('Wx') as tf.Tensor2D), this.w('bx') as tf.Tensor1D);
       // One-hot matmul instead of gather: its gradient is a matmul (the WASM backend has no UnsortedSegmentSum).
       const xin = tf.reshape(tf.matMul(oneHotRows(prev, this.settings.vocabSize), table), [b, t, 3 * d]);
-      const steps = tf.unstack(xin, 1) as tf.Tensor2D[];
-      let h: tf.Tensor2D = tf.tile(tf.reshape(this.w('h0'), [1, d]), [b, 1]) as tf.Tensor2D;
-      const uzr = this.w('Uzr') as tf.Tensor2D;
-      const uh = this.w('Uh') as tf.Tensor2D;
-      const out: tf.Tensor2D[] = [];
-      for (const x of steps) {
-        const [xz, xr, xh] = tf.split(x, [d, d, d], 1);
-        const [hz, hr] = tf.split(tf.matMul(h, uzr), [d, d], 1);
-        const z = tf.sigmoid(tf.add(xz, hz));
-        const r = tf.sigmoid(tf.add(xr, hr));
-        const cand = tf.tanh(tf.add(xh, tf.matMul(tf.mul(r, h) as tf.Tensor2D, uh)));
-        h = tf.add(tf.mul(z, h), tf.mul(tf.sub(1, z), cand)) as tf.Tensor2D;
-        out.push(h);
-      }
-      return tf.reshape(tf.stack(out, 1), [b * t, d]) as tf.Tensor2D;
+      // The recurrence as one op with a hand-written gradient (gru-lm-sequence.ts), time-major.
+      const h0 = addBias(tf.zeros([b, d]), this.w('h0') as tf.Tensor1D);
+      const hs = gruLmSequence(tf.transpose(xin, [1, 0, 2]) as tf.Tensor3D, h0, this.w('Uzr') as tf.Tensor2D, this.w('Uh') as tf.Tensor2D);
+      return tf.reshape(tf.transpose(hs, [1, 0, 2]), [b * t, d]) as tf.Tensor2D;
     });
   }
 
@@ -105,8 +96,8 @@ export class GruLanguageModel {
   observationLogProbs(h: tf.Tensor2D): tf.Tensor2D {
     return tf.tidy(() => {
       let x: tf.Tensor2D = h;
-      if (this.settings.observationHidden > 0) x = tf.tanh(tf.add(tf.matMul(x, this.w('Wm') as tf.Tensor2D), this.w('bm'))) as tf.Tensor2D;
-      return tf.logSoftmax(tf.add(tf.matMul(x, this.w('Wo') as tf.Tensor2D), this.w('bo'))) as tf.Tensor2D;
+      if (this.settings.observationHidden > 0) x = tf.tanh(addBias(tf.matMul(x, this.w('Wm') as tf.Tensor2D), this.w('bm') as tf.Tensor1D)) as tf.Tensor2D;
+      return tf.logSoftmax(addBias(tf.matMul(x, this.w('Wo') as tf.Tensor2D), this.w('bo') as tf.Tensor1D)) as tf.Tensor2D;
     });
   }
 

@@ -15,6 +15,10 @@
  * Checked against automatic differentiation of the step-by-step loop in `gru-sequence.spec.ts`.
  */
 import * as tf from '@tensorflow/tfjs-core';
+import { columnSums } from './bias-add';
+
+/** Added (negated) to the update gate's pre-activation on padded steps: sigm(-PAD) is exactly 0 in float32. */
+const PAD = 1e4;
 
 /**
  * States b_t of the backward GRU, time-major [T, B, H]. `xProj`: input projections x Wx + bx, [T, B, 3H]
@@ -25,42 +29,48 @@ export function backwardGruSequence(xProj: tf.Tensor3D, mask: tf.Tensor3D, wh: t
   const H = H3 / 3;
   const run = tf.customGrad((...args: Array<tf.Tensor | tf.GradSaveFunc>) => {
     const [x, w, bias, save] = args as [tf.Tensor3D, tf.Tensor2D, tf.Tensor1D, tf.GradSaveFunc];
-    const [xru, xn] = tf.split(x, [2 * H, H], 2);
+    // The loop computes a = m (1 - u) directly as sigm(-pre_u - PAD (1 - m)): the update gate's columns are
+    // negated (sigm(-v) = 1 - sigm(v)) and padded steps are pushed to exactly 0 (sigm(-1e4) = 0 in float32).
+    const sign = tf.concat([tf.ones([H]), tf.fill([H], -1), tf.ones([H])]);
+    const pad = tf.concat([tf.zeros([T, B, H]), tf.mul(tf.sub(mask, 1), tf.fill([T, B, H], PAD)), tf.zeros([T, B, H])], 2);
+    const [xru, xn] = tf.split(tf.add(tf.mul(x, sign), pad), [2 * H, H], 2);
+    const wSigned = tf.mul(w, sign);
+    const biasSigned = tf.mul(bias, sign);
     const xrus = tf.unstack(xru as tf.Tensor) as tf.Tensor2D[];
     const xns = tf.unstack(xn as tf.Tensor) as tf.Tensor2D[];
-    const masks = tf.unstack(mask) as tf.Tensor2D[];
     let b = tf.zeros([B, H]) as tf.Tensor2D;
     const prev: tf.Tensor2D[] = new Array(T);
     const rs: tf.Tensor2D[] = new Array(T);
-    const us: tf.Tensor2D[] = new Array(T);
+    const as: tf.Tensor2D[] = new Array(T);
     const ns: tf.Tensor2D[] = new Array(T);
     const hpns: tf.Tensor2D[] = new Array(T);
     const out: tf.Tensor2D[] = new Array(T);
     for (let t = T - 1; t >= 0; t--) {
-      const hp = tf.add(tf.matMul(b, w as tf.Tensor2D), bias);
+      const hp = tf.add(tf.matMul(b, wSigned), biasSigned);
       const [hpru, hpn] = tf.split(hp, [2 * H, H], 1) as [tf.Tensor2D, tf.Tensor2D];
-      const [r, u] = tf.split(tf.sigmoid(tf.add(xrus[t] as tf.Tensor2D, hpru)), 2, 1) as [tf.Tensor2D, tf.Tensor2D];
+      const [r, a] = tf.split(tf.sigmoid(tf.add(xrus[t] as tf.Tensor2D, hpru)), 2, 1) as [tf.Tensor2D, tf.Tensor2D];
       const n = tf.tanh(tf.add(xns[t] as tf.Tensor2D, tf.mul(r, hpn))) as tf.Tensor2D;
-      const next = tf.add(b, tf.mul(tf.mul(masks[t] as tf.Tensor2D, tf.sub(1, u)), tf.sub(n, b))) as tf.Tensor2D;
+      const next = tf.add(b, tf.mul(a, tf.sub(n, b))) as tf.Tensor2D;
       prev[t] = b;
       rs[t] = r;
-      us[t] = u;
+      as[t] = a;
       ns[t] = n;
       hpns[t] = hpn;
       out[t] = next;
       b = next;
     }
-    const [P, R, U, N, HPN] = [prev, rs, us, ns, hpns].map((list) => tf.stack(list)) as tf.Tensor3D[];
-    save([P as tf.Tensor3D, R as tf.Tensor3D, U as tf.Tensor3D, N as tf.Tensor3D, HPN as tf.Tensor3D, w]);
+    const [P, R, A, N, HPN] = [prev, rs, as, ns, hpns].map((list) => tf.stack(list)) as tf.Tensor3D[];
+    save([P as tf.Tensor3D, R as tf.Tensor3D, A as tf.Tensor3D, N as tf.Tensor3D, HPN as tf.Tensor3D, w]);
     return {
       value: tf.stack(out) as tf.Tensor3D,
       gradFunc: (dy: tf.Tensor, saved: tf.Tensor[]) => {
-        const [Pv, Rv, Uv, Nv, HPNv, Wv] = saved as [tf.Tensor3D, tf.Tensor3D, tf.Tensor3D, tf.Tensor3D, tf.Tensor3D, tf.Tensor2D];
+        const [Pv, Rv, Av, Nv, HPNv, Wv] = saved as [tf.Tensor3D, tf.Tensor3D, tf.Tensor3D, tf.Tensor3D, tf.Tensor3D, tf.Tensor2D];
         // Per-step coefficients for all steps at once: d pre = g * coefficient.
-        const a = tf.mul(mask, tf.sub(1, Uv));
+        const a = Av; // m (1 - u)
         const cn = tf.mul(a, tf.sub(1, tf.square(Nv)));
         const cr = tf.mul(tf.mul(cn, HPNv), tf.mul(Rv, tf.sub(1, Rv)));
-        const cu = tf.neg(tf.mul(tf.mul(mask, tf.sub(Nv, Pv)), tf.mul(Uv, tf.sub(1, Uv))));
+        // -m (n - b) u (1 - u) = -(n - b) a (1 - a): m is 0 or 1, and a = 1 - u where m = 1, 0 where m = 0.
+        const cu = tf.neg(tf.mul(tf.sub(Nv, Pv), tf.mul(Av, tf.sub(1, Av))));
         const cHp = tf.concat([cr, cu, tf.mul(cn, Rv)], 2); // d hp = g * cHp (g repeated three times)
         const cX = tf.concat([cr, cu, cn], 2); // d x = g * cX
         const cB = tf.unstack(tf.sub(1, a)) as tf.Tensor2D[];
@@ -73,13 +83,14 @@ export function backwardGruSequence(xProj: tf.Tensor3D, mask: tf.Tensor3D, wh: t
           const g = (carry ? tf.add(dys[t] as tf.Tensor2D, carry) : dys[t]) as tf.Tensor2D;
           gs[t] = g;
           if (t === T - 1) break; // the state entering the last step is the constant 0
-          const dHp = tf.mul(tf.tile(g, [1, 3]), cHps[t] as tf.Tensor2D);
+          const dHp = tf.mul(tf.concat([g, g, g], 1), cHps[t] as tf.Tensor2D);
           carry = tf.add(tf.mul(g, cB[t] as tf.Tensor2D), tf.matMul(dHp, whT)) as tf.Tensor2D;
         }
-        const G3 = tf.tile(tf.stack(gs), [1, 1, 3]);
+        const G = tf.stack(gs);
+        const G3 = tf.concat([G, G, G], 2);
         const dHpAll = tf.reshape(tf.mul(G3, cHp), [T * B, H3]);
         const dW = tf.matMul(tf.reshape(Pv, [T * B, H]), dHpAll, true, false);
-        const dBias = tf.sum(dHpAll, 0);
+        const dBias = columnSums(dHpAll as tf.Tensor2D);
         return [tf.mul(G3, cX), dW, dBias];
       },
     };

@@ -1,16 +1,16 @@
 /**
  * The per-sample log-weight log W of MODEL.md section 5, for K proposal samples per word, written for few
  * kernel launches (per-kernel overhead dominates at these sizes):
- * - every conditioner's product with h_{t-1} (proposal and each layer of both flows) is one matmul per step;
- * - all first-layer biases and the proposal's word-level input b_t (repeated for the K samples, all steps at
- *   once) are added in one add per step;
- * - the observation term and the Gaussian terms of all steps are computed after the loop, on [T, K, B, ...]
- *   stacks, and masked by one multiply.
+ * - only the proposal and the inference flow run step by step (`ssm-recurrence.ts`, one op with a hand-written
+ *   gradient: each weight's gradient is one matmul over all steps);
+ * - the generative flow's inverse, the observation term and the Gaussian terms of all steps are computed after
+ *   the loop, on [T, K, B, ...] stacks (automatic differentiation, a few kernels each), and masked by one multiply.
  */
 import * as tf from '@tensorflow/tfjs-core';
 import type { EncodedBatch } from '../data/encode';
-import { boundedScale } from './flows/conditioner';
+import { addBias } from './bias-add';
 import type { ConditionalFlow } from './flows/flow';
+import { proposalRecurrence } from './ssm-recurrence';
 import type { SsmSettings } from './ssm-settings';
 
 /** What the computation needs from the model. */
@@ -35,45 +35,32 @@ export function computeLogWeights(
   const inf = m.inferenceFlow.prepare();
   // Rows are k*B + b (sample k of word b); word-level inputs are broadcast over the K samples once per call.
   const enc = m.encodeBackward(batch); // [T, B, H]
-  const bProj = tf.reshape(tf.add(tf.matMul(tf.reshape(enc, [T * B, H]), p('prop.wb')), p('prop.b1')), [T, B, P]);
-  // Every first-layer term that does not depend on h_{t-1}, for all steps at once: the proposal's word-level
-  // input (with prop.b1) repeated for the K samples, then both flows' first-layer biases. [T, N, P + flow widths]
-  // (Broadcast onto zeros rather than tf.tile: the gradient of tile is a slice and an add per copy.)
-  const flowB = tf.concat([inf.contextB, gen.contextB]);
-  const flowBiases = tf.add(tf.zeros([T, N, flowB.shape[0]]), flowB);
+  const bProj = tf.reshape(addBias(tf.matMul(tf.reshape(enc, [T * B, H]), p('prop.wb')), p('prop.b1') as tf.Tensor1D), [T, B, P]);
+  // Every first-layer term of the step-by-step part that does not depend on h_{t-1}, for all steps at once: the
+  // proposal's word-level input (with prop.b1) repeated for the K samples, then the inference flow's first-layer
+  // biases. [T, N, P + flow width] (Broadcast onto zeros rather than tf.tile: the gradient of tile is a slice and
+  // an add per copy.)
   const propInput = tf.reshape(tf.add(tf.zeros([T, k, B, P]), tf.reshape(bProj, [T, 1, B, P])), [T, N, P]);
-  const biasSteps = tf.unstack(tf.concat([propInput, flowBiases], 2)) as tf.Tensor2D[];
-  const wCtx = tf.concat([p('prop.wh'), inf.contextW, gen.contextW], 1); // [d, P + widths of both flows]
-  const eps = tf.randomNormal([T, N, d], 0, 1, 'float32', seed);
-  const noise = tf.unstack(eps) as tf.Tensor2D[];
-  let hPrev = tf.add(tf.zeros([N, d]), p('h0')) as tf.Tensor2D;
-  const states: tf.Tensor2D[] = [];
-  const zs: tf.Tensor2D[] = [];
-  // Per-step pieces of the log-determinant terms, combined after the loop (same additions in the same order).
-  const stds: tf.Tensor2D[] = [];
-  const genLogDets: tf.Tensor1D[] = [];
-  const infLogDets: tf.Tensor1D[] = [];
-  for (let t = 0; t < T; t++) {
-    const pre = tf.add(tf.matMul(hPrev, wCtx), biasSteps[t] as tf.Tensor2D) as tf.Tensor2D;
-    const [propPre, infPre, genPre] = tf.split(pre, [P, inf.contextWidth, gen.contextWidth], 1) as tf.Tensor2D[];
-    // Proposal q(xi_t | h_{t-1}, b_t) = N(m, diag(s^2)), s = softplus(.) + 1e-4; reparameterised sample.
-    const [mean, scalePre] = tf.split(tf.add(tf.matMul(tf.tanh(propPre as tf.Tensor2D), p('prop.w2')), p('prop.b2')), 2, 1);
-    const std = boundedScale(scalePre as tf.Tensor);
-    const xi = tf.add(mean as tf.Tensor, tf.mul(std, noise[t] as tf.Tensor2D)) as tf.Tensor2D;
-    const q = inf.forward(infPre as tf.Tensor2D, xi); // h_t and log |det d f_q / d xi|
-    const g = gen.inverse(genPre as tf.Tensor2D, q.y); // eps_t = f_g^{-1}(h_t) and its log-det
-    stds.push(std as tf.Tensor2D);
-    genLogDets.push(g.logdet);
-    infLogDets.push(q.logdet);
-    zs.push(g.z);
-    states.push(q.y);
-    hPrev = q.y;
-  }
-  const hs = tf.stack(states, 0); // [T, N, d]
+  const bias = tf.concat([propInput, tf.add(tf.zeros([T, N, inf.contextWidth]), inf.contextB)], 2) as tf.Tensor3D;
+  const eps = tf.randomNormal([T, N, d], 0, 1, 'float32', seed) as tf.Tensor3D;
+  const h0 = tf.add(tf.zeros([N, d]), p('h0')) as tf.Tensor2D;
+  // Proposal and inference flow, step by step (hand-written gradient): h_t and L_t = sum log s_t + logdet f_q.
+  const hl = proposalRecurrence({
+    h0, eps, bias,
+    w: tf.concat([p('prop.wh'), inf.contextW], 1) as tf.Tensor2D,
+    w2: p('prop.w2') as tf.Tensor2D,
+    b2: p('prop.b2') as tf.Tensor1D,
+    layers: inf.layers,
+    layerWidth: m.settings.flowHidden,
+  });
+  const [hs, proposalLogDets] = tf.split(hl, [d, 1], 2) as [tf.Tensor3D, tf.Tensor3D]; // [T, N, d], [T, N, 1]
+  // The generative flow's inverse does not feed the next step: all steps at once, eps_t = f_g^{-1}(h_t; h_{t-1}).
+  const hPrev = T === 1 ? tf.reshape(h0, [1, N, d]) : tf.concat([tf.reshape(h0, [1, N, d]), tf.slice(hs, [0, 0, 0], [T - 1, N, d])], 0);
+  const g = gen.inverseFromContext(tf.reshape(hPrev, [T * N, d]) as tf.Tensor2D, tf.reshape(hs, [T * N, d]) as tf.Tensor2D);
   // log N(eps_t; 0, I) + logdet_g - log N(xi_t; m, s^2) + logdet_q; the -d/2 log(2 pi) terms cancel:
-  // = 0.5 * (|e|^2 - |eps_t|^2) + sum log s + logdet_g + logdet_q   (xi = m + s * e).
-  const quadratic = tf.mul(tf.sub(tf.sum(tf.square(eps), 2), tf.sum(tf.square(tf.stack(zs, 0)), 2)), 0.5);
-  const logDets = tf.add(tf.add(tf.sum(tf.log(tf.stack(stds, 0)), 2), tf.stack(genLogDets, 0)), tf.stack(infLogDets, 0));
+  // = 0.5 * (|e|^2 - |eps_t|^2) + sum log s + logdet_q + logdet_g   (xi = m + s * e).
+  const quadratic = tf.mul(tf.sub(tf.sum(tf.square(eps), 2), tf.reshape(tf.sum(tf.square(g.z), 1), [T, N])), 0.5);
+  const logDets = tf.add(tf.reshape(proposalLogDets, [T, N]), tf.reshape(g.logdet, [T, N]));
   const latent = tf.reshape(tf.add(quadratic, logDets), [T, k, B]);
   // log p(w_t | h_t) for all steps at once: one-hot targets [T, 1, B, V] broadcast over the K samples.
   const logProbs = tf.reshape(tf.logSoftmax(m.observationLogits(tf.reshape(hs, [T * N, d]) as tf.Tensor2D)), [T, k, B, V]);

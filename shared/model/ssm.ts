@@ -6,6 +6,7 @@
 import * as tf from '@tensorflow/tfjs-core';
 import { createRng, type Rng } from '../data/random';
 import type { EncodedBatch } from '../data/encode';
+import { addBias } from './bias-add';
 import { createFlow, type ConditionalFlow } from './flows/flow';
 import { backwardGruSequence } from './gru-sequence';
 import { checkWeightShapes, ParamSet, type NamedWeights } from './params';
@@ -99,10 +100,10 @@ export class StateSpaceModel {
   observationLogits(h: tf.Tensor2D): tf.Tensor2D {
     const p = (n: string) => this.core.get(n);
     if (this.settings.observationHidden > 0) {
-      const hidden = tf.tanh(tf.add(tf.matMul(h, p('obs.w1')), p('obs.b1')));
-      return tf.add(tf.matMul(hidden, p('obs.w2')), p('obs.b2')) as tf.Tensor2D;
+      const hidden = tf.tanh(addBias(tf.matMul(h, p('obs.w1')), p('obs.b1') as tf.Tensor1D)) as tf.Tensor2D;
+      return addBias(tf.matMul(hidden, p('obs.w2')), p('obs.b2') as tf.Tensor1D);
     }
-    return tf.add(tf.matMul(h, p('obs.w')), p('obs.b')) as tf.Tensor2D;
+    return addBias(tf.matMul(h, p('obs.w')), p('obs.b') as tf.Tensor1D);
   }
 
   /** Prior trajectories h_1..h_tMax of n samples, [n, tMax, d]; no data involved. */
@@ -140,7 +141,7 @@ export class StateSpaceModel {
       // Embedding lookup as one-hot x matrix: the WASM backend has no gradient kernel for gather. (Its OneHot
       // kernel also returns zeros when asked for float32 directly, hence int32 + cast.)
       const emb = tf.matMul(tf.cast(tf.oneHot(tf.reshape(ids, [T * B]), this.settings.vocabSize), 'float32'), p('enc.embed'));
-      const xProj = tf.reshape(tf.add(tf.matMul(emb, p('enc.wx')), p('enc.bx')), [T, B, 3 * H]);
+      const xProj = tf.reshape(addBias(tf.matMul(emb, p('enc.wx')), p('enc.bx') as tf.Tensor1D), [T, B, 3 * H]);
       return backwardGruSequence(xProj as tf.Tensor3D, tf.expandDims(mask, 2) as tf.Tensor3D, p('enc.wh') as tf.Tensor2D, p('enc.bh') as tf.Tensor1D);
     });
   }

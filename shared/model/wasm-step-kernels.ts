@@ -20,6 +20,7 @@
  * Installed next to the slice kernels by `installWasmKernels` (`wasm-kernels.ts`).
  */
 import {
+  Add,
   BatchMatMul,
   Concat,
   backend_util,
@@ -94,20 +95,19 @@ function makeMatMul(matMul: Stock, transpose: Stock) {
   };
 }
 
-/** tanh(x) for float32 data: 2 sigmoid(2x) - 1, and the Taylor polynomial for |x| < 1/16. */
-function makeTanh(sigmoid: Stock, fallback: Stock) {
+/** tanh(x) for float32 data: 2 sigmoid(2x) - 1, and the Taylor polynomial for |x| < 1/16. (2x = x + x, exact.) */
+function makeTanh(add: Stock, sigmoid: Stock, fallback: Stock) {
   return (args: Args): TensorInfo => {
     const x = args.inputs['x'] as TensorInfo;
     if (x.dtype !== 'float32') return fallback(args);
     const backend = args.backend as WasmBackend;
     const n = util.sizeFromShape(x.shape);
-    const twice = backend.makeOutput(x.shape, 'float32'); // allocating may grow (and detach) the heap: views after
+    const twice = add({ inputs: { a: x, b: x }, backend, attrs: {} });
     if (n === 0) return twice;
-    let xs = backend.typedArrayFromHeap(x) as Float32Array;
-    const tw = backend.typedArrayFromHeap(twice) as Float32Array;
-    for (let i = 0; i < n; i++) tw[i] = 2 * (xs[i] as number);
     const out = sigmoid({ inputs: { x: twice }, backend, attrs: {} });
-    xs = backend.typedArrayFromHeap(x) as Float32Array;
+    backend.disposeData(twice.dataId);
+    // Views after the last allocation (allocating may grow, and so detach, the heap).
+    const xs = backend.typedArrayFromHeap(x) as Float32Array;
     const ys = backend.typedArrayFromHeap(out) as Float32Array;
     for (let i = 0; i < n; i++) {
       const v = xs[i] as number;
@@ -118,7 +118,6 @@ function makeTanh(sigmoid: Stock, fallback: Stock) {
         ys[i] = 2 * (ys[i] as number) - 1;
       }
     }
-    backend.disposeData(twice.dataId);
     return out;
   };
 }
@@ -172,7 +171,7 @@ export function installWasmStepKernels(): boolean {
   if (!getKernel(BatchMatMul, 'wasm')) return false;
   const replacements: Array<[string, (fallback: Stock) => Stock]> = [
     [BatchMatMul, (f) => makeMatMul(f, stock(Transpose))],
-    [Tanh, (f) => makeTanh(stock(Sigmoid), f)],
+    [Tanh, (f) => makeTanh(stock(Add), stock(Sigmoid), f)],
     [Identity, (f) => makeIdentity(f)],
     [Concat, (f) => makeConcat(f)],
   ];

@@ -5,6 +5,7 @@
  * conditioners on the same c share one matmul; `conditionerOutput` does the rest.
  */
 import * as tf from '@tensorflow/tfjs-core';
+import { addBias } from '../bias-add';
 import { glorot, zeros, type ParamSpecs } from '../params';
 
 /** Softplus pre-activation that gives a scale of exactly 1 at start: log(e - 1). */
@@ -33,12 +34,12 @@ export function contextOf(get: VariableLookup, prefix: string): { w: tf.Tensor2D
 
 /** `tanh(pre) W2 + b2` from the first layer's pre-activation. */
 export function conditionerOutput(get: VariableLookup, prefix: string, pre: tf.Tensor2D): tf.Tensor2D {
-  return tf.add(tf.matMul(tf.tanh(pre), get(`${prefix}w2`)), get(`${prefix}b2`)) as tf.Tensor2D;
+  return addBias(tf.matMul(tf.tanh(pre), get(`${prefix}w2`)), get(`${prefix}b2`) as tf.Tensor1D);
 }
 
 /** Runs the conditioner on its whole input x: `tanh(x W1 + b1) W2 + b2`. */
 export function runConditioner(get: VariableLookup, prefix: string, x: tf.Tensor2D): tf.Tensor2D {
-  return conditionerOutput(get, prefix, tf.add(tf.matMul(x, get(`${prefix}w1`)), get(`${prefix}b1`)) as tf.Tensor2D);
+  return conditionerOutput(get, prefix, addBias(tf.matMul(x, get(`${prefix}w1`)), get(`${prefix}b1`) as tf.Tensor1D));
 }
 
 /** `softplus(x) + 1e-4`: a positive scale bounded away from zero. */

@@ -11,6 +11,7 @@
  * z*1 + 0 = z); likewise `z = (y - t)*exp(-s)` for the inverse.
  */
 import * as tf from '@tensorflow/tfjs-core';
+import { addBias } from '../bias-add';
 import { constant, type ParamSpecs } from '../params';
 import { conditionerSpecs, type VariableLookup } from './conditioner';
 import type { FlowDims, FlowLayer, PreparedLayer } from './flow-layer';
@@ -87,10 +88,11 @@ export class CouplingFlow implements FlowLayer {
     /** (s, t) — or (-s, t) with `minusScale` — both exactly 0 where the mask is 1; `x` is z (forward) or y (inverse): m*x is the same. */
     const shiftScale = (ctxPre: tf.Tensor2D, x: tf.Tensor2D, sScale: tf.Tensor) => {
       const h = tf.tanh(tf.add(tf.matMul(x, wz), ctxPre));
-      const [sRaw, t] = tf.split(tf.add(tf.matMul(h, w2), b2), 2, 1) as [tf.Tensor2D, tf.Tensor2D];
+      const [sRaw, t] = tf.split(addBias(tf.matMul(h, w2), b2 as tf.Tensor1D), 2, 1) as [tf.Tensor2D, tf.Tensor2D];
       return { s: tf.mul(tf.tanh(sRaw), sScale) as tf.Tensor2D, t };
     };
     return {
+      parts: { kind: 'coupling', dim: d, weights: [wz, w2, b2, scale] },
       forward: (ctxPre, z) => {
         const { s, t } = shiftScale(ctxPre, z, scale);
         return { y: tf.add(tf.mul(z, tf.exp(s)), t) as tf.Tensor2D, logdet: tf.sum(s, 1) };

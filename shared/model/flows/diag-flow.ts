@@ -27,6 +27,7 @@ export class DiagFlow implements FlowLayer {
       return { mu, sigma: boundedScale(pre) as tf.Tensor2D };
     };
     return {
+      parts: { kind: 'diag', dim: this.dims.dim, weights: [get('net.w2'), get('net.b2')] },
       forward: (ctxPre, z) => {
         const { mu, sigma } = muSigma(ctxPre);
         return { y: tf.add(mu, tf.mul(sigma, z)), logdet: tf.sum(tf.log(sigma), 1) };

@@ -26,6 +26,21 @@ export interface FlowInverse {
 export interface PreparedLayer {
   forward(ctxPre: tf.Tensor2D, z: tf.Tensor2D): FlowForward;
   inverse(ctxPre: tf.Tensor2D, y: tf.Tensor2D): FlowInverse;
+  /** The tensors `forward` computes with, for the hand-written gradient of `flows/forward-grads.ts`. */
+  readonly parts: ForwardParts;
+}
+
+/**
+ * What a layer's forward pass uses beyond ctxPre and z, in a fixed order per kind:
+ * shift, diag, tril: [W2, b2] (the conditioner's second layer); coupling: [W1z (masked), W2 (masked), b2 (masked),
+ * scale (masked)]. `constants` (no gradient): tril's one-hot [pick, add] matrices when d > 1.
+ */
+export interface ForwardParts {
+  readonly kind: FlowKind;
+  /** Size of z (the state size d). */
+  readonly dim: number;
+  readonly weights: tf.Tensor[];
+  readonly constants?: tf.Tensor2D[];
 }
 
 export interface FlowLayer {

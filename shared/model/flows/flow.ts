@@ -6,15 +6,16 @@
  */
 import * as tf from '@tensorflow/tfjs-core';
 import type { Rng } from '../../data/random';
+import { addBias } from '../bias-add';
 import { ParamSet, prefixSpecs, type NamedWeights, type ParamSpecs } from '../params';
 import { CouplingFlow } from './coupling-flow';
 import { DiagFlow } from './diag-flow';
-import type { FlowDims, FlowForward, FlowInverse, FlowKind, FlowLayer, PreparedLayer } from './flow-layer';
+import type { FlowDims, FlowForward, FlowInverse, FlowKind, FlowLayer, ForwardParts, PreparedLayer } from './flow-layer';
 import { FLOW_KIND_NAMES } from '../settings-rules';
 import { ShiftFlow } from './shift-flow';
 import { TrilFlow } from './tril-flow';
 
-export type { FlowForward, FlowInverse, FlowKind } from './flow-layer';
+export type { FlowForward, FlowInverse, FlowKind, ForwardParts } from './flow-layer';
 
 /** One layer of a flow stack. A flow is described by an array of these, applied in order to z. */
 export interface FlowSpec {
@@ -53,6 +54,13 @@ export interface PreparedFlow {
   readonly contextWidth: number;
   forward(ctxPre: tf.Tensor2D, z: tf.Tensor2D): FlowForward;
   inverse(ctxPre: tf.Tensor2D, y: tf.Tensor2D): FlowInverse;
+  /**
+   * The inverse given c itself: each layer's ctxPre from its own matmul with c (for many rows this avoids
+   * splitting one wide ctxPre, and concatenating its gradient, at the price of one matmul per layer).
+   */
+  inverseFromContext(c: tf.Tensor2D, y: tf.Tensor2D): FlowInverse;
+  /** Each layer's forward tensors, in stack order (for the hand-written gradient of the inference recurrence). */
+  readonly layers: ForwardParts[];
 }
 
 /** Throws a clear error if `spec` is not a non-empty list of known flow layers. */
@@ -127,6 +135,7 @@ class FlowStack implements ConditionalFlow {
       contextW: single ? first.w : tf.concat(ctx.map((x) => x.w), 1),
       contextB: single ? first.b : tf.concat(ctx.map((x) => x.b)),
       contextWidth: this.dims.hidden * layers.length,
+      layers: layers.map((layer) => layer.parts),
       forward: (ctxPre, z) => {
         const pre = parts(ctxPre);
         let y = z;
@@ -138,18 +147,19 @@ class FlowStack implements ConditionalFlow {
         });
         return { y, logdet: logdet as unknown as tf.Tensor1D };
       },
-      inverse: (ctxPre, y) => {
-        const pre = parts(ctxPre);
-        let z = y;
-        let logdet: tf.Tensor1D | null = null;
-        for (let i = layers.length - 1; i >= 0; i--) {
-          const r = (layers[i] as PreparedLayer).inverse(pre[i] as tf.Tensor2D, z);
-          z = r.z;
-          logdet = logdet ? (tf.add(logdet, r.logdet) as tf.Tensor1D) : r.logdet;
-        }
-        return { z, logdet: logdet as unknown as tf.Tensor1D };
-      },
+      inverse: (ctxPre, y) => inverseLayers(parts(ctxPre), y),
+      inverseFromContext: (c, y) => inverseLayers(ctx.map((x) => addBias(tf.matMul(c, x.w), x.b)), y),
     };
+    function inverseLayers(pre: tf.Tensor2D[], y: tf.Tensor2D): FlowInverse {
+      let z = y;
+      let logdet: tf.Tensor1D | null = null;
+      for (let i = layers.length - 1; i >= 0; i--) {
+        const r = (layers[i] as PreparedLayer).inverse(pre[i] as tf.Tensor2D, z);
+        z = r.z;
+        logdet = logdet ? (tf.add(logdet, r.logdet) as tf.Tensor1D) : r.logdet;
+      }
+      return { z, logdet: logdet as unknown as tf.Tensor1D };
+    }
   }
 
   forward(c: tf.Tensor2D, z: tf.Tensor2D): FlowForward {

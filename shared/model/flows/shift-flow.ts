@@ -18,6 +18,7 @@ export class ShiftFlow implements FlowLayer {
 
   prepare(get: VariableLookup): PreparedLayer {
     return {
+      parts: { kind: 'shift', dim: this.dims.dim, weights: [get('mu.w2'), get('mu.b2')] },
       forward: (ctxPre, z) => ({ y: tf.add(z, conditionerOutput(get, 'mu.', ctxPre)), logdet: tf.zeros([z.shape[0]]) }),
       inverse: (ctxPre, y) => ({ z: tf.sub(y, conditionerOutput(get, 'mu.', ctxPre)), logdet: tf.zeros([y.shape[0]]) }),
     };

@@ -93,7 +93,10 @@ export class TrilFlow implements FlowLayer {
   }
 
   prepare(get: VariableLookup): PreparedLayer {
+    this.allocate();
+    const constants = this.constants ? [this.constants.pick, this.constants.add] : undefined;
     return {
+      parts: { kind: 'tril', dim: this.dims.dim, weights: [get('net.w2'), get('net.b2')], ...(constants ? { constants } : {}) },
       forward: (ctxPre, z) => {
         const { mu, sigma, lower } = this.parts(get, ctxPre);
         let y = tf.add(mu, tf.mul(sigma, z));
