@@ -50,9 +50,12 @@ export class RunnerJobService {
     this.runs = new RunService(ctx, em);
   }
 
-  /** The run if this runner holds it; 404 for an unknown id, 409 RUN_NOT_HELD otherwise. */
-  async held(runner: Runner, runId: string): Promise<Run> {
-    const run = UUID.test(runId) ? await this.em.findOne(Run, { id: runId }, { populate: ['bench', 'corpus', 'runner'] }) : null;
+  /**
+   * The run if this runner holds it; 404 for an unknown id, 409 RUN_NOT_HELD otherwise. Only its runner is
+   * loaded unless asked (the bench and corpus stay references: a progress call need not read them).
+   */
+  async held(runner: Runner, runId: string, withCorpus = false): Promise<Run> {
+    const run = UUID.test(runId) ? await this.em.findOne(Run, { id: runId }, { populate: withCorpus ? ['corpus', 'runner'] : ['runner'] }) : null;
     if (!run) throw notFound('This run');
     this.requireHeld(runner, run);
     return run;
