@@ -5,7 +5,7 @@
  * both. Writes bench/results/runners.json and prints the figures. Target: 2 threads ≥ 1.7× faster on 2 cores.
  * Options (environment): BENCH_RUNNER_STEPS (steps per run, default 150), BENCH_RUNNER_ROUNDS (default 2).
  */
-import { mkdirSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { availableParallelism, cpus, loadavg } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -25,7 +25,22 @@ const SETTINGS = {
   training: { steps: STEPS, batchSize: 32, samples: 4, learningRate: 0.01, clipNorm: 5, evalEvery: 50, evalSamples: 8, checkpointEvery: 50, seed: 1 },
 };
 
-interface Measure { wallSeconds: number; coresBusy: number }
+interface Measure { wallSeconds: number; coresBusy: number; cpuSeconds: number; mainThreadCpuSeconds: number | null }
+
+/**
+ * CPU seconds of this process's main thread (the server, and the runner's main thread) from /proc (Linux;
+ * null elsewhere). The training threads are the rest of the process's CPU time.
+ */
+function mainThreadCpuSeconds(): number | null {
+  try {
+    const stat = readFileSync(`/proc/self/task/${process.pid}/stat`, 'utf8');
+    const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+    // Fields 14 and 15 of proc(5) (utime, stime) in clock ticks: 100 per second on Linux (getconf CLK_TCK).
+    return (Number(fields[11]) + Number(fields[12])) / 100;
+  } catch {
+    return null;
+  }
+}
 
 /** Wall time of one grid, and the CPU time this process (server, runner and its threads) used meanwhile. */
 async function measureGrid(base: string, lab: Lab, token: string, threads: number, round: number): Promise<Measure> {
@@ -34,6 +49,7 @@ async function measureGrid(base: string, lab: Lab, token: string, threads: numbe
     const t0 = performance.now();
     const started = Date.now();
     const cpu0 = process.cpuUsage();
+    const main0 = mainThreadCpuSeconds();
     const grid = await api<GridDto>(base, `/benches/${lab.benchId}/grids`, lab.token, json({
       name: `bench ${threads} thread(s), round ${round}`, corpusId: lab.corpusId, family: 'ssm', baseSettings: SETTINGS,
       axes: [{ key: 'training.seed', values: Array.from({ length: CELLS }, (_, i) => 100 * round + threads * 10 + i) }], placement: 'runners',
@@ -50,26 +66,36 @@ async function measureGrid(base: string, lab: Lab, token: string, threads: numbe
     const lastFinish = Math.max(...runs.map((r) => Date.parse(r.updatedAt)));
     const wallSeconds = (lastFinish - started) / 1000;
     // CPU seconds per wall second over the polled span (up to a second longer than the grid's own).
-    return { wallSeconds, coresBusy: (cpu.user + cpu.system) / 1e6 / ((performance.now() - t0) / 1000) };
+    const main1 = mainThreadCpuSeconds();
+    return {
+      wallSeconds, coresBusy: (cpu.user + cpu.system) / 1e6 / ((performance.now() - t0) / 1000), cpuSeconds: (cpu.user + cpu.system) / 1e6,
+      mainThreadCpuSeconds: main0 !== null && main1 !== null ? main1 - main0 : null,
+    };
   } finally {
     await runner.stop();
   }
 }
 
-const server = await startHarnessServer(process.env["BENCH_LOG"] ? { LOG_LEVEL: "info" } : {});
+// BENCH_RUNNER_LOG=1 prints the server's request lines (to count the calls a grid makes).
+const server = await startHarnessServer(process.env['BENCH_RUNNER_LOG'] ? { LOG_LEVEL: 'info' } : {});
 try {
   const lab = await openLab(server.url);
   const token = await runnerToken(server.url, lab, 'bench');
   const loadBefore = loadavg();
   const times: Record<1 | 2, number[]> = { 1: [], 2: [] };
   const cores: Record<1 | 2, number[]> = { 1: [], 2: [] };
+  const mainCpu: Record<1 | 2, number[]> = { 1: [], 2: [] };
+  const allCpu: Record<1 | 2, number[]> = { 1: [], 2: [] };
   for (let round = 0; round < ROUNDS; round++) {
     for (const threads of round % 2 === 0 ? [1, 2] as const : [2, 1] as const) {
       const m = await measureGrid(server.url, lab, token, threads, round);
       times[threads].push(m.wallSeconds);
       cores[threads].push(m.coresBusy);
+      allCpu[threads].push(m.cpuSeconds);
+      if (m.mainThreadCpuSeconds !== null) mainCpu[threads].push(m.mainThreadCpuSeconds);
       process.stdout.write(`round ${round + 1}: ${threads} thread(s): ${m.wallSeconds.toFixed(1)} s for ${CELLS} runs of ${STEPS} steps, ` +
-        `${m.coresBusy.toFixed(2)} cores busy on average\n`);
+        `${m.coresBusy.toFixed(2)} cores busy on average, CPU ${m.cpuSeconds.toFixed(1)} s` +
+        `${m.mainThreadCpuSeconds !== null ? ` (main thread: server and runner ${m.mainThreadCpuSeconds.toFixed(1)} s)` : ''}\n`);
     }
   }
   const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor((xs.length - 1) / 2)] as number;
@@ -84,6 +110,9 @@ try {
     medianWallSeconds: { oneThread: Number(one.toFixed(2)), twoThreads: Number(two.toFixed(2)) },
     /** CPU seconds of this process per wall second: how many cores the runs actually got. */
     coresUsed: { oneThread: cores[1].map((x) => Number(x.toFixed(2))), twoThreads: cores[2].map((x) => Number(x.toFixed(2))) },
+    /** CPU seconds per grid: the whole process, and its main thread (server, runner main thread, the bench's polling). */
+    cpuSeconds: { oneThread: allCpu[1].map((x) => Number(x.toFixed(2))), twoThreads: allCpu[2].map((x) => Number(x.toFixed(2))) },
+    mainThreadCpuSeconds: { oneThread: mainCpu[1].map((x) => Number(x.toFixed(2))), twoThreads: mainCpu[2].map((x) => Number(x.toFixed(2))) },
     speedUp: Number((one / two).toFixed(2)),
     target: 1.7,
     note: 'Wall time from creating the grid until its last run finished, thread start-up included. Other processes shared the ' +
