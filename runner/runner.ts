@@ -133,6 +133,9 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
     queueWorker.on('error', (e) => display.note(`queue: ${e.message}`));
   } else {
     loops = slots.map(async (slot) => {
+      // A job is claimed only once its thread can train it (loading TF.js takes seconds): a run claimed earlier
+      // would wait in this runner while another one could train it.
+      await Promise.race([slot.whenReady().catch(() => undefined), stopped]);
       let idle = IDLE_FIRST_MS;
       while (!stopping) {
         let job: RunnerJob | null = null;
