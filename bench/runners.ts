@@ -63,13 +63,13 @@ async function measureGrid(base: string, lab: Lab, token: string, threads: numbe
       axes: [{ key: 'training.seed', values: Array.from({ length: CELLS }, (_, i) => 100 * round + threads * 10 + i) }], placement: 'runners',
     }));
     const ids = new Set(grid.cells.map((c) => c.run?.id));
-    // Polled once a second (the polling is server work too); the end is the server's time of the last finish.
+    // Polled every 2 s (the polling is server work too); the end is the server's time of the last finish.
     const runs = await waitFor(`the ${CELLS} runs of the grid to finish`, async () => {
       const mine = (await runsOf(base, lab)).filter((r) => ids.has(r.id));
       const failed = mine.find((r) => r.status === 'failed');
       if (failed) throw new Error(`Run ${failed.name} failed: ${failed.statusReason}`);
       return mine.length === CELLS && mine.every((r) => r.status === 'finished') ? mine : null;
-    }, 30 * 60_000, 1000);
+    }, 30 * 60_000, 2000);
     const cpu = process.cpuUsage(cpu0);
     const lastFinish = Math.max(...runs.map((r) => Date.parse(r.updatedAt)));
     const wallSeconds = (lastFinish - started) / 1000;
