@@ -26,6 +26,10 @@ if (!options) {
       process.exit(1);
     });
   };
+  void runner.refused.then((reason) => {
+    process.stderr.write(`runner: stopped, the server refused the token: ${reason}\nStart the runner again with a valid token (an admin makes one on the Runners page).\n`);
+    process.exit(3);
+  });
   process.on('SIGINT', () => shutdown('SIGINT'));
   process.on('SIGTERM', () => shutdown('SIGTERM'));
 }

@@ -18,6 +18,8 @@ Usage: npm run runner -- --server <url> --token <runner token> [options]
   -h, --help            this text
 
 Ctrl-C (or SIGTERM) saves a checkpoint of every job and hands it back to the queue before the runner ends.
+When the server refuses the token (revoked by an admin, or made by another server) the runner says so and
+ends with exit status 3; the server has already handed its jobs back to the queue.
 `;
 
 /** Parses argv (without node and script); null when help was asked for. */

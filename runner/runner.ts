@@ -30,7 +30,17 @@ export interface RunnerOptions {
 export interface RunnerHandle {
   /** Saves a checkpoint of every job, hands them back as `queued`, and ends the threads. */
   stop(): Promise<void>;
+  /** Resolves when every thread has loaded TF.js and the WASM backend (rejects when a thread cannot start). */
+  ready(): Promise<void>;
+  /**
+   * Resolves when the runner ended on its own because the server refused its token (revoked, or unknown here),
+   * with the server's sentence; never resolves otherwise. The threads are closed by then.
+   */
+  readonly refused: Promise<string>;
 }
+
+/** A 401 from the server: the token is revoked or unknown, and asking again cannot help. */
+const isRefusal = (e: unknown): e is RunnerApiError => e instanceof RunnerApiError && e.status === 401;
 
 const HEARTBEAT_EVERY_MS = 5000;
 const IDLE_FIRST_MS = 500;
@@ -49,6 +59,8 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
   const display = new ProgressDisplay(o.output ?? process.stderr);
   const slots = Array.from({ length: o.threads }, (_, i) => new ThreadSlot(i, (slot) => { if (slot.progress) display.update(slot.progress); }));
   let stopping = false;
+  let refuse: (reason: string) => void = () => {};
+  const refused = new Promise<string>((resolve) => { refuse = resolve; });
   let wake: () => void = () => {};
   const stopped = new Promise<void>((resolve) => { wake = resolve; });
   const sleep = (ms: number) => Promise.race([new Promise<void>((r) => setTimeout(r, ms).unref()), stopped]);
@@ -59,7 +71,8 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
       const answer = await api.heartbeat({ name, threads: o.threads, jobs });
       for (const c of answer.controls) slots.find((s) => s.runId === c.runId)?.command(c.action);
     } catch (e) {
-      display.note(`heartbeat: ${(e as Error).message}`);
+      if (isRefusal(e)) void giveUp(e);
+      else display.note(`heartbeat: ${(e as Error).message}`);
     }
   };
   const timer = setInterval(() => void heartbeat(), HEARTBEAT_EVERY_MS);
@@ -89,6 +102,7 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
       try {
         claimed = await api.claim(job.data.runId);
       } catch (e) {
+        if (isRefusal(e)) void giveUp(e);
         if (e instanceof RunnerApiError && e.code === 'RUN_NOT_QUEUED') return 'not queued';
         if (e instanceof RunnerApiError && e.code === 'RUN_HELD') {
           // Another runner's lease is still fresh (a killed runner's lease runs out): try again when it has,
@@ -119,12 +133,19 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
     queueWorker.on('error', (e) => display.note(`queue: ${e.message}`));
   } else {
     loops = slots.map(async (slot) => {
+      // A job is claimed only once its thread can train it (loading TF.js takes seconds): a run claimed earlier
+      // would wait in this runner while another one could train it.
+      await Promise.race([slot.whenReady().catch(() => undefined), stopped]);
       let idle = IDLE_FIRST_MS;
       while (!stopping) {
         let job: RunnerJob | null = null;
         try {
           job = await api.claim();
         } catch (e) {
+          if (isRefusal(e)) {
+            void giveUp(e);
+            break;
+          }
           display.note(`claim: ${(e as Error).message}`);
         }
         if (stopping && job) {
@@ -142,7 +163,11 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
     });
   }
 
-  return {
+  const handle: RunnerHandle = {
+    refused,
+    async ready() {
+      await Promise.all(slots.map((s) => s.whenReady()));
+    },
     async stop() {
       if (stopping) return;
       stopping = true;
@@ -157,4 +182,14 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
       display.stop();
     },
   };
+  /** The token was refused: stop (jobs end as lost; the server already gave their runs back) and say why. */
+  let givingUp = false;
+  const giveUp = async (e: RunnerApiError) => {
+    if (givingUp) return;
+    givingUp = true;
+    display.note(`runner "${name}": the server refused this runner's token: ${e.message}`);
+    await handle.stop();
+    refuse(e.message);
+  };
+  return handle;
 }

@@ -23,6 +23,11 @@ export class ThreadSlot {
     this.spawn();
   }
 
+  /** Resolves when the thread has loaded TF.js and the WASM backend. */
+  whenReady(): Promise<void> {
+    return this.ready;
+  }
+
   get busy(): boolean {
     return this.pending !== null;
   }

@@ -44,6 +44,8 @@ export interface JobIo {
 }
 
 const METRICS_EVERY_MS = 2000;
+/** Points per metrics call (the server takes up to MAX_METRIC_POINTS_PER_REQUEST). */
+const POINTS_PER_BATCH = 2000;
 /** Codes after which this runner must leave the run alone at once. */
 const LOST_CODES = new Set(['RUN_NOT_HELD', 'RUNNER_REVOKED', 'UNAUTHORIZED']);
 const isLost = (e: unknown) => e instanceof RunnerApiError && (LOST_CODES.has(e.code) || e.status === 401 || e.status === 404);
@@ -142,7 +144,10 @@ class JobSession {
     // The per-step training points come from onStep; a report adds speed and validation figures.
     this.points.push(...metricPointsOf(p).filter((pt) => pt.series !== SERIES.train));
     void this.report(p);
-    if (performance.now() - this.lastFlush >= METRICS_EVERY_MS) void this.enqueue(() => this.flushNow());
+    if (performance.now() - this.lastFlush >= METRICS_EVERY_MS) {
+      this.lastFlush = performance.now(); // one flush in the queue at a time, even when the network lags
+      void this.enqueue(() => this.flushNow());
+    }
   }
 
   /** Sends a progress call (queued behind earlier calls, so the server sees them in order). */
@@ -192,16 +197,23 @@ class JobSession {
     };
   }
 
+  /**
+   * Sends the points gathered so far (in batches of at most POINTS_PER_BATCH). Points that the loop adds while
+   * a batch is on its way wait for the next flush: a loop that outruns the network must not turn one flush into
+   * a stream of small posts (each costs the server a token check, a run lookup and a transaction).
+   */
   private async flushNow(): Promise<void> {
     this.lastFlush = performance.now();
-    while (this.points.length > 0 && !this.lost) {
-      const batch = this.points.splice(0, 2000);
+    let due = this.points.length;
+    while (due > 0 && !this.lost) {
+      const batch = this.points.splice(0, Math.min(due, POINTS_PER_BATCH));
       try {
         await this.api.metrics(this.job.runId, batch);
       } catch (e) {
         this.points.unshift(...batch); // sent again with the next flush
         throw e;
       }
+      due -= batch.length;
     }
   }
 

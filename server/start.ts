@@ -14,10 +14,11 @@ import { Mailbox } from './modules/mail/mailbox';
 import { smtpMailer, type Mailer } from './modules/mail/mailer';
 import { startEmbeddedRunnerThreads } from './modules/runners/embedded-threads';
 import { createRunQueue } from './modules/runners/queue/create-run-queue';
+import { watchLeases } from './modules/runners/lease-expiry';
 import { RunEventBus } from './modules/runners/run-events';
 import { ensureQueuedJobs, prepareEmbeddedRunner, releaseEmbeddedRuns } from './modules/runners/runner-startup';
 import { seedDemoIfEmpty } from './seeders/demo-seed';
-import { createLogger } from './logging';
+import { createLogger, safeError } from './logging';
 import { cpuPool } from './workers/cpu-pool';
 import { AdminSetup } from './modules/auth/admin-setup';
 import { UserRepository } from './modules/users/user.repository';
@@ -113,6 +114,9 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
     const adminSetup = new AdminSetup(config);
     adminSetup.announce(logger, await new UserRepository(orm.em.fork()).countAdmins());
     server.on('request', createApp(config, { orm, mailer, mailbox, clock, logger, adminSetup, runQueue, runEvents }));
+    // Runner runs whose runner stopped answering go back to waiting as soon as their lease runs out.
+    const logError = (error: unknown) => logger.error({ err: safeError(error) }, 'lease check failed');
+    cleanups.push(watchLeases({ config, orm, mailer, mailbox, clock, logger, adminSetup, logError, runQueue, runEvents }));
 
     let runnerThreads = 0;
     if (embedded) {

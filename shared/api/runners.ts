@@ -110,7 +110,20 @@ export interface RunLiveProgress {
  *    summary change), `progress` (data: RunLiveProgress), `metrics` (data: { points: {series, step, value}[] }).
  *  - `GET /api/benches/:benchId/events` (viewer+): event `run` (data: RunDto) for every run of the bench whose
  *    status, steps or summary changed (grid and run-list pages).
+ *  - both: event `deleted` (data: RunDeletedEvent) when a person deletes a run of the bench.
  * Both send a comment line `: keep-alive` every 15 s. They take the usual `Authorization: Bearer` header, so the
  * app reads them with `fetch` and a stream reader (EventSource cannot send headers); polling is the fallback.
  */
-export type RunEventName = 'run' | 'progress' | 'metrics';
+export type RunEventName = 'run' | 'progress' | 'metrics' | 'deleted';
+
+/**
+ * Event `deleted` (both streams): the run is gone (its points and checkpoints with it). Sent once, when a person
+ * deletes it; open pages drop it from their lists, and its own page says so.
+ */
+export interface RunDeletedEvent {
+  id: string;
+  benchId: string;
+  name: string;
+  /** Display name of who deleted it. */
+  deletedBy: string;
+}

@@ -112,8 +112,32 @@ describe('server-sent events', () => {
     const progress = await stream.next((e) => e.event === 'progress');
     expect(progress.data).toMatchObject({ step: 30, steps: 200, stepsPerSecond: 4, etaSeconds: 42.5, runnerName: 'Cellar box' });
     const asRun = await stream.next((e) => e.event === 'run' && (e.data as { stepsDone: number }).stepsDone === 30);
-    expect(asRun.data).toMatchObject({ status: 'training', placement: 'runners', runner: { name: 'Cellar box' } });
+    expect(asRun.data).toMatchObject({ status: 'training', placement: 'runners', runner: { name: 'Cellar box' }, corpus: { id: corpus.id, name: 'Tiny words' } });
+    // The creator's name, although the runner routes do not load the creator.
+    expect((asRun.data as { createdBy: { displayName: unknown } }).createdBy.displayName).toEqual(expect.stringMatching(/\S/));
     stream.close();
+    expect(await waitForNoListeners(f.benchId)).toBe(0);
+  });
+
+  it('tells the bench stream and the run stream when a run is deleted', async () => {
+    const run = await createRun(t, f.benchId, f.tokens.member, ssmRunBody(corpus.id, 'Soon gone'));
+    const other = await createRun(t, f.benchId, f.tokens.member, ssmRunBody(corpus.id, 'Stays'));
+    const runStream = await openStream(`/api/benches/${f.benchId}/runs/${run.id}/events`, f.tokens.viewer);
+    const otherStream = await openStream(`/api/benches/${f.benchId}/runs/${other.id}/events`, f.tokens.viewer);
+    const benchStream = await openStream(`/api/benches/${f.benchId}/events`, f.tokens.viewer);
+    await runStream.next((e) => e.event === 'run');
+    await otherStream.next((e) => e.event === 'run');
+    // A queued tab run cannot be deleted: stop it first.
+    expect((await request(t.app).patch(`/api/benches/${f.benchId}/runs/${run.id}`).set(bearer(f.tokens.member)).send({ status: 'stopped' })).status).toBe(200);
+    const gone = await request(t.app).delete(`/api/benches/${f.benchId}/runs/${run.id}`).set(bearer(f.tokens.member));
+    expect(gone.status).toBe(204);
+
+    const expected = { id: run.id, benchId: f.benchId, name: 'Soon gone', deletedBy: expect.stringMatching(/\S/) };
+    expect((await runStream.next((e) => e.event === 'deleted')).data).toEqual(expected);
+    expect((await benchStream.next((e) => e.event === 'deleted')).data).toEqual(expected);
+    // Another run's stream is not told.
+    await expect(otherStream.next((e) => e.event === 'deleted', 600)).rejects.toThrow(/no matching event/);
+    for (const s of [runStream, otherStream, benchStream]) s.close();
     expect(await waitForNoListeners(f.benchId)).toBe(0);
   });
 

@@ -1,16 +1,17 @@
 /**
  * The in-process bus every run change is published on (status, steps, summary, live progress, metric
- * points), read by the server-sent event streams of runners-events.routes.ts. Events carry the bench id, so a
+ * points, deletion), read by the server-sent event streams of runners-events.routes.ts. Events carry the bench id, so a
  * stream subscribes to one bench and filters by run where it watches one run.
  */
 import { EventEmitter } from 'node:events';
-import type { RunEventName, RunLiveProgress } from '../../../shared/api/runners';
+import type { RunDeletedEvent, RunEventName, RunLiveProgress } from '../../../shared/api/runners';
 import type { RunDto } from '../../../shared/api/runs';
 
 export type RunEvent =
   | { name: 'run'; benchId: string; runId: string; data: RunDto }
   | { name: 'progress'; benchId: string; runId: string; data: RunLiveProgress }
-  | { name: 'metrics'; benchId: string; runId: string; data: { points: { series: string; step: number; value: number }[] } };
+  | { name: 'metrics'; benchId: string; runId: string; data: { points: { series: string; step: number; value: number }[] } }
+  | { name: 'deleted'; benchId: string; runId: string; data: RunDeletedEvent };
 
 export class RunEventBus {
   private readonly emitter = new EventEmitter();

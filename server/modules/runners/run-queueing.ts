@@ -3,7 +3,7 @@
  * the queue (with its fairness priority) or take one that stopped waiting off it, and publish the change on
  * the event bus (server-sent events).
  */
-import type { EntityManager } from '@mikro-orm/core';
+import { wrap, type EntityManager } from '@mikro-orm/core';
 import type { AppContext } from '../../app-context';
 import type { Run } from '../runs/run.entity';
 import { toRunDto } from '../runs/run.repository';
@@ -35,8 +35,15 @@ export async function queueForRunners(ctx: AppContext, em: EntityManager, runs: 
   await ctx.runQueue.enqueue(queued);
 }
 
-/** Publishes a run's new state on the bus (`run` event; `canControl` is filled per listener). */
+/**
+ * Publishes a run's new state on the bus (`run` event; `canControl` is filled per listener). Nothing to do (no
+ * query, no DTO) while no stream of the bench is open; otherwise the corpus and creator names are loaded when
+ * the caller did not load them.
+ */
 export async function publishRun(ctx: AppContext, em: EntityManager, run: Run): Promise<void> {
+  if (ctx.runEvents.listenerCount(run.bench.id) === 0) return;
+  const missing = (['corpus', 'createdBy'] as const).filter((k) => run[k] && !wrap(run[k]).isInitialized());
+  if (missing.length > 0) await em.populate(run, missing);
   const rows: { n: number }[] = await em.getConnection().execute('select count(*) as n from checkpoints where run_id = ?', [run.id]);
   ctx.runEvents.publish({ name: 'run', benchId: run.bench.id, runId: run.id, data: toRunDto(run, Number(rows[0]?.n ?? 0), false) });
 }

@@ -85,13 +85,13 @@ export function runnerBenchRoutes(ctx: AppContext): Router {
   });
 
   router.get('/events', requireRole('viewer'), (req, res) => {
-    streamEvents(ctx, req, res, { runId: null, names: ['run'] }, null);
+    streamEvents(ctx, req, res, { runId: null, names: ['run', 'deleted'] }, null);
   });
 
   router.get('/runs/:runId/events', requireRole('viewer'), async (req, res) => {
     const run = await loadRun(ctx, req);
     const dto = await new RunRepository(ctx.orm.em).dto(run, currentUser(req), currentBench(req).role);
-    streamEvents(ctx, req, res, { runId: run.id, names: ['run', 'progress', 'metrics'] }, { name: 'run', benchId: run.bench.id, runId: run.id, data: dto });
+    streamEvents(ctx, req, res, { runId: run.id, names: ['run', 'progress', 'metrics', 'deleted'] }, { name: 'run', benchId: run.bench.id, runId: run.id, data: dto });
   });
 
   return router;

@@ -7,6 +7,7 @@
 import type { EntityManager } from '@mikro-orm/better-sqlite';
 import { ErrorCode } from '../../../shared/api/errors';
 import {
+  RUNNER_HEARTBEAT_EVERY_SECONDS,
   RUNNER_LEASE_SECONDS,
   RUNNER_PROGRESS_EVERY_SECONDS,
   type RunnerControl,
@@ -21,6 +22,7 @@ import { conflict, HttpError, notFound } from '../../http-error';
 import { Checkpoint } from '../runs/checkpoint.entity';
 import { MetricRepository } from '../runs/metric.repository';
 import { Run } from '../runs/run.entity';
+import { withRunLock } from '../runs/run-lock';
 import { RunService } from '../runs/run.service';
 import type { Runner } from './runner.entity';
 import { leaseUntil } from './runner.repository';
@@ -50,12 +52,29 @@ export class RunnerJobService {
     this.runs = new RunService(ctx, em);
   }
 
-  /** The run if this runner holds it; 404 for an unknown id, 409 RUN_NOT_HELD otherwise. */
-  async held(runner: Runner, runId: string): Promise<Run> {
-    const run = UUID.test(runId) ? await this.em.findOne(Run, { id: runId }, { populate: ['bench', 'corpus', 'runner'] }) : null;
+  /**
+   * The run if this runner holds it; 404 for an unknown id, 409 RUN_NOT_HELD otherwise. Only its runner is
+   * loaded unless asked (the bench and corpus stay references: a progress call need not read them).
+   */
+  async held(runner: Runner, runId: string, withCorpus = false): Promise<Run> {
+    const run = UUID.test(runId) ? await this.em.findOne(Run, { id: runId }, { populate: withCorpus ? ['corpus', 'runner'] : ['runner'] }) : null;
     if (!run) throw notFound('This run');
     this.requireHeld(runner, run);
     return run;
+  }
+
+  /**
+   * Runs `work` under the run's lock with the run read inside it (so no second read is needed to see changes
+   * made while the lock was waited for); 404 / 409 RUN_NOT_HELD as `held`.
+   */
+  private async whileHeld<T>(runner: Runner, runId: string, work: (run: Run) => Promise<T>): Promise<T> {
+    if (!UUID.test(runId)) throw notFound('This run');
+    return withRunLock(runId, async () => {
+      const run = await this.em.findOne(Run, { id: runId }, { populate: ['runner'], refresh: true });
+      if (!run) throw notFound('This run');
+      this.requireHeld(runner, run);
+      return work(run);
+    });
   }
 
   private requireHeld(runner: Runner, run: Run): void {
@@ -165,9 +184,7 @@ export class RunnerJobService {
 
   /** `POST /jobs/:runId/progress`: live figures, steps done, `training` on the first call; answers the control. */
   async progress(runner: Runner, runId: string, body: z.output<typeof runnerProgressSchema>): Promise<'continue' | 'pause' | 'stop'> {
-    const run = await this.held(runner, runId);
-    return this.runs.locked(run, async () => {
-      this.requireHeld(runner, run);
+    return this.whileHeld(runner, runId, async (run) => {
       const now = this.ctx.clock.now();
       const before = run.status;
       if (run.status !== 'training') this.runs.applyStatus(run, { status: 'training', actor: null });
@@ -183,7 +200,8 @@ export class RunnerJobService {
       };
       run.leaseExpiresAt = leaseUntil(now);
       run.updatedAt = now;
-      runner.lastHeartbeatAt = now;
+      // The runner's own row only when its last sign of life is older than a heartbeat interval (one write less per call).
+      if (!runner.lastHeartbeatAt || now.getTime() - runner.lastHeartbeatAt.getTime() >= RUNNER_HEARTBEAT_EVERY_SECONDS * 1000 / 2) runner.lastHeartbeatAt = now;
       await this.em.flush();
       this.ctx.runEvents.publish({ name: 'progress', benchId: run.bench.id, runId: run.id, data: run.live });
       await this.runs.afterChange(run, before);
@@ -193,9 +211,7 @@ export class RunnerJobService {
 
   /** `POST /jobs/:runId/finish`: the run's new status (through the machine); releases the lease. */
   async finish(runner: Runner, runId: string, body: z.output<typeof runnerFinishSchema>): Promise<void> {
-    const run = await this.held(runner, runId);
-    await this.runs.locked(run, async () => {
-      this.requireHeld(runner, run);
+    await this.whileHeld(runner, runId, async (run) => {
       const before = run.status;
       if (this.runs.isLate(run, body.status)) return;
       this.runs.applyStatus(run, { status: body.status, statusReason: body.statusReason, stepsDone: body.stepsDone, summary: body.summary, actor: null });

@@ -54,7 +54,7 @@ export function runnerJobRoutes(ctx: AppContext): Router {
   });
 
   router.get('/jobs/:runId/training-set', async (req, res) => {
-    const run = await jobs().held(currentRunner(req), String(req.params['runId']));
+    const run = await jobs().held(currentRunner(req), String(req.params['runId']), true);
     const corpus = run.corpus;
     if (!corpus) throw notFound('The corpus of this run');
     const rows: { word: string; count: number; split: TrainingSet['splits'][number] }[] = await ctx.orm.em

@@ -229,6 +229,9 @@ export class RunService {
       });
       this.em.getUnitOfWork().unsetIdentity(run);
       await this.ctx.runQueue.withdraw(run.id).catch(this.ctx.logError);
+      // Open pages of the bench and of the run learn that it is gone.
+      const benchId = run.bench.id;
+      this.ctx.runEvents.publish({ name: 'deleted', benchId, runId: run.id, data: { id: run.id, benchId, name: run.name, deletedBy: me.displayName } });
     });
   }
 }

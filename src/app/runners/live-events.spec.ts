@@ -3,7 +3,7 @@ import { TestBed } from '@angular/core/testing';
 import type { RunDto } from '../../../shared/api/runs';
 import { AuthStore } from '../core/auth-store';
 import { RunsApi } from '../runs/runs-api';
-import { EVENT_FETCH, LiveEvents } from './live-events';
+import { EVENT_FETCH, LiveEvents, RunnerWatch } from './live-events';
 import type { StreamFetch } from './run-events';
 
 const RUN = { id: 'run-1', status: 'queued', stepsDone: 0, live: null, placement: 'runners' } as unknown as RunDto;
@@ -73,5 +73,28 @@ describe('LiveEvents', () => {
     await vi.advanceTimersByTimeAsync(1000);
     expect(got.map((batch) => batch.map((r) => `${r.id}:${r.stepsDone}`))).toEqual([['a:1'], ['a:3', 'b:5']]);
     handle.close();
+  });
+
+  it('tells the bench page at once when a run was deleted, and not as a changed run', async () => {
+    vi.useFakeTimers();
+    const { events, write } = setUp();
+    const got: RunDto[][] = [];
+    const gone: string[] = [];
+    const handle = events.watchBench('b1', (runs) => got.push(runs), { onDeleted: (d) => gone.push(`${d.id} by ${d.deletedBy}`) });
+    await vi.advanceTimersByTimeAsync(0);
+    write(`event: deleted\ndata: ${JSON.stringify({ id: 'a', benchId: 'b1', name: 'Old', deletedBy: 'Ada' })}\n\n`);
+    await vi.advanceTimersByTimeAsync(0);
+    expect(gone).toEqual(['a by Ada']);
+    await vi.advanceTimersByTimeAsync(1000);
+    expect(got).toEqual([]);
+    handle.close();
+  });
+
+  it('marks a watched run as deleted', () => {
+    const watch = new RunnerWatch({ id: 'r1', status: 'stopped' } as RunDto);
+    expect(watch.deleted()).toBeNull();
+    watch.apply([{ event: 'deleted', id: null, data: JSON.stringify({ id: 'r1', benchId: 'b1', name: 'Old', deletedBy: 'Ada' }) }]);
+    expect(watch.deleted()).toEqual({ id: 'r1', benchId: 'b1', name: 'Old', deletedBy: 'Ada' });
+    watch.close();
   });
 });

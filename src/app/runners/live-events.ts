@@ -1,6 +1,6 @@
 import { Injectable, InjectionToken, inject, signal, type WritableSignal } from '@angular/core';
 import { Subject } from 'rxjs';
-import type { RunLiveProgress } from '../../../shared/api/runners';
+import type { RunDeletedEvent, RunLiveProgress } from '../../../shared/api/runners';
 import { KNOWN_METRIC_SERIES, type RunDto } from '../../../shared/api/runs';
 import { AuthStore } from '../core/auth-store';
 import type { CurvePoint } from '../runs/live-run';
@@ -39,6 +39,8 @@ export class RunnerWatch {
   readonly reopened = new Subject<void>();
   /** Emits the run when its status changed (the page then reloads its checkpoints). */
   readonly statusChanged = new Subject<RunDto>();
+  /** Set when someone deleted the run (the stream's `deleted` event). */
+  readonly deleted = signal<RunDeletedEvent | null>(null);
   private stream: EventStreamHandle | null = null;
 
   constructor(initial: RunDto) {
@@ -54,7 +56,8 @@ export class RunnerWatch {
     let progress: RunLiveProgress | null = null;
     const points: CurvePoint[] = [];
     for (const e of events) {
-      if (e.event === 'run') run = parse<RunDto>(e.data) ?? run;
+      if (e.event === 'deleted') this.deleted.set(parse<RunDeletedEvent>(e.data));
+      else if (e.event === 'run') run = parse<RunDto>(e.data) ?? run;
       else if (e.event === 'progress') progress = parse<RunLiveProgress>(e.data) ?? progress;
       else if (e.event === 'metrics') points.push(...(parse<{ points: CurvePoint[] }>(e.data)?.points ?? []));
     }
@@ -123,9 +126,13 @@ export class LiveEvents {
 
   /**
    * Follows a bench's run changes (`GET /api/benches/:benchId/events`): `onRuns` gets the latest DTO of every run that
-   * changed, at most once a second. `poll` is the fallback while the stream cannot be held open.
+   * changed, at most once a second; `onDeleted` hears of a deleted run at once. `poll` is the fallback while the stream cannot be held open.
    */
-  watchBench(benchId: string, onRuns: (runs: RunDto[]) => void, options: { poll?: () => Promise<void> | void; onState?: (s: StreamState) => void } = {}): EventStreamHandle {
+  watchBench(
+    benchId: string,
+    onRuns: (runs: RunDto[]) => void,
+    options: { poll?: () => Promise<void> | void; onState?: (s: StreamState) => void; onDeleted?: (run: RunDeletedEvent) => void } = {},
+  ): EventStreamHandle {
     const coalescer = new Coalescer<RunDto>((runs) => {
       const latest = new Map<string, RunDto>();
       for (const r of runs) latest.set(r.id, r);
@@ -136,6 +143,11 @@ export class LiveEvents {
       token: () => this.auth.token(),
       fetch: this.fetch,
       onEvent: (e) => {
+        if (e.event === 'deleted') {
+          const gone = parse<RunDeletedEvent>(e.data);
+          if (gone) options.onDeleted?.(gone);
+          return;
+        }
         if (e.event !== 'run') return;
         const run = parse<RunDto>(e.data);
         if (run) coalescer.add(run);

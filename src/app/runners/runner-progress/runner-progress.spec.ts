@@ -53,6 +53,13 @@ describe('RunnerProgress', { timeout: 30_000 }, () => {
     expect(actions).toEqual(['resume']);
   });
 
+  it('says why a run waits for a runner again when its runner went silent', async () => {
+    const why = 'The runner "box-2" stopped answering (no word since its lease ran out at 09:01:00 UTC); waiting for a runner.';
+    const { text } = await setUp({ run: { ...RUN, status: 'queued', runner: null, statusReason: why }, canControl: true });
+    expect(text('runner-where')).toContain('Waiting for a runner');
+    expect(text('runner-wait-reason')).toBe(why);
+  });
+
   it('shows a viewer the progress but no controls', async () => {
     const { loader, text } = await setUp({ progress: PROGRESS, canControl: false });
     expect(text('runner-steps')).toBe('step 120 / 400');

@@ -21,7 +21,10 @@ import type { StreamState } from '../run-events';
     <div class="nw-card progress-card" data-testid="runner-progress">
       <p class="where" data-testid="runner-where">
         @switch (run().status) {
-          @case ('queued') { Waiting for a runner: the server's runners take queued runs in turn, fairly between benches. }
+          @case ('queued') {
+            Waiting for a runner: the server's runners take queued runs in turn, fairly between benches.
+            @if (run().statusReason; as why) { <span data-testid="runner-wait-reason">{{ why }}</span> }
+          }
           @case ('training') { Training on <strong>{{ runnerName() ?? 'a runner' }}</strong>. Closing this page does not stop it. }
           @case ('paused') { Paused on the runners; its latest checkpoint is saved. }
           @default { {{ statusLabel() }} on the runners{{ runnerName() ? ' (last on ' + runnerName() + ')' : '' }}. }

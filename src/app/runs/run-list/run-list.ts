@@ -75,7 +75,11 @@ export class RunList {
     // Runs that change elsewhere (runners, other tabs) update in place from the bench's event stream.
     effect((onCleanup) => {
       const id = this.benchId();
-      const stream = untracked(() => this.liveEvents.watchBench(id, (runs) => this.patch(runs), { poll: () => this.reload() }));
+      const stream = untracked(() => this.liveEvents.watchBench(id, (runs) => this.patch(runs), {
+        poll: () => this.reload(),
+        // A run deleted elsewhere leaves the page (and the count and pages change): load the page again.
+        onDeleted: (gone) => { if (this.items().some((r) => r.id === gone.id)) this.reload(); },
+      }));
       onCleanup(() => stream.close());
     });
     effect(() => {

@@ -149,6 +149,11 @@ export class RunView {
       const run = this.runnerWatch()?.run();
       if (run && run.id === untracked(() => this.runId())) untracked(() => this.run.set(run));
     });
+    // Someone deleted this run while the page was open: say so (its curves and checkpoints are gone).
+    effect(() => {
+      const gone = this.runnerWatch()?.deleted();
+      if (gone && gone.id === untracked(() => this.runId())) untracked(() => this.problem.set(`${gone.deletedBy} deleted the run "${gone.name}"; it and its checkpoints are gone.`));
+    });
     effect(() => {
       const state = this.live()?.state();
       if (state === 'finished' || state === 'stopped' || state === 'failed') untracked(() => void this.refreshRun());
