@@ -108,7 +108,7 @@ class JobSession {
   private lastFlush = 0;
   private chain: Promise<unknown> = Promise.resolve();
   private last: TrainingProgress | null = null;
-  private best: { bits: number; step: number } | null = null;
+  private best: { bits: number; bitsPerWord: number; step: number } | null = null;
 
   constructor(
     private readonly job: RunnerJob,
@@ -139,7 +139,7 @@ class JobSession {
     this.last = p;
     const e = p.evaluation;
     if (e && Number.isFinite(e.validationBitsPerChar) && (!this.best || e.validationBitsPerChar < this.best.bits)) {
-      this.best = { bits: e.validationBitsPerChar, step: e.step };
+      this.best = { bits: e.validationBitsPerChar, bitsPerWord: e.validationBitsPerWord, step: e.step };
     }
     // The per-step training points come from onStep; a report adds speed and validation figures.
     this.points.push(...metricPointsOf(p).filter((pt) => pt.series !== SERIES.train));
@@ -194,6 +194,7 @@ class JobSession {
       ...(p && p.totalSteps > 0 && Number.isFinite(p.trainBitsPerChar)
         ? { lastBoundBitsPerChar: p.trainBitsPerChar, lastIsBound: p.isBound, wordsPerSecond: Math.max(0, p.wordsPerSecond) } : {}),
       ...(this.best ? { bestValidationBitsPerChar: this.best.bits, bestValidationStep: this.best.step } : {}),
+      ...(this.best && Number.isFinite(this.best.bitsPerWord) ? { bestValidationBitsPerWord: this.best.bitsPerWord } : {}),
     };
   }
 

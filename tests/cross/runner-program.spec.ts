@@ -68,6 +68,8 @@ describe('runner program on the embedded back-end', () => {
         const done = await waitFor(`${run.name} to finish`, statusIs(run.id, 'finished', 'failed'), 120_000);
         expect(done.status, done.statusReason ?? '').toBe('finished');
         expect(done.stepsDone).toBe(80);
+        // The final validation is summarised per char and per word (a word has at least its end-of-word symbol).
+        expect(done.summary.bestValidationBitsPerWord).toBeGreaterThanOrEqual(done.summary.bestValidationBitsPerChar ?? Infinity);
         expectWholeCurve(await trainSteps(server.url, lab, run.id), 0, 80, 10);
         const { bytes } = await latestCheckpointBytes(server.url, lab, run.id);
         expect(decodeCheckpoint(bytes).step).toBe(80);
