@@ -54,8 +54,8 @@ export function createApp(config: Config, deps: AppDeps): Express {
 
   const api = Router();
   api.use(express.json({ limit: config.jsonBodyLimitBytes }));
-  // Event streams stay open for as long as a page watches: they must not hold a place in the line.
-  api.use(requestGate(config.apiConcurrency, (path) => path === '/health' || path === '/config' || /^\/benches\/[^/]+\/(runs\/[^/]+\/)?events$/.test(path)));
+  // Health and config never wait; an event stream gives its place back once it starts (request-gate.ts).
+  api.use(requestGate(config.apiConcurrency, (path) => path === '/health' || path === '/config'));
   api.use(textGuard);
   api.use((_req, _res, next) => RequestContext.create(ctx.orm.em, next));
   api.use((_req, res, next) => {
