@@ -10,6 +10,7 @@ import { wordRows } from './corpus-import';
 import { CorpusWord } from './corpus-word.entity';
 import { Corpus } from './corpus.entity';
 import { caseInsensitiveGlob } from './word-search';
+import { ClientGoneError } from '../../workers/cpu-pool';
 
 /**
  * Rows per INSERT statement (5 bound parameters each stays far below SQLite's parameter limit). Small
@@ -50,9 +51,11 @@ export class CorpusRepository {
 
   /**
    * Saves a corpus (must have no errors) with all its words and an activity event in one transaction:
-   * either everything is written or nothing.
+   * either everything is written or nothing. When `signal` aborts (the uploader's connection closed) before
+   * the last words are written, the transaction is rolled back: nobody was told the corpus was saved, and
+   * the work is not finished for nobody while other uploads wait.
    */
-  async save(input: { bench: Bench; user: User | null; name: string; description: string; upload: AnalysedUpload | SavableCorpus; at: Date }): Promise<Corpus> {
+  async save(input: { bench: Bench; user: User | null; name: string; description: string; upload: AnalysedUpload | SavableCorpus; at: Date; signal?: AbortSignal }): Promise<Corpus> {
     const upload = 'splitParts' in input.upload ? savableOf(input.upload) : input.upload;
     const { parsed, options, fileName, rows } = upload;
     if (!parsed.ok || !parsed.format) throw new Error('A corpus with errors cannot be saved.');
@@ -89,6 +92,7 @@ export class CorpusRepository {
       const conn = em.getConnection();
       const tx = em.getTransactionContext();
       for (let i = 0; i < rows.length; i += INSERT_CHUNK) {
+        if (input.signal?.aborted) throw new ClientGoneError();
         const chunk = rows.slice(i, i + INSERT_CHUNK);
         const params: unknown[] = [];
         for (const r of chunk) params.push(corpus.id, r.word, r.count, r.split, r.length);
