@@ -7,6 +7,7 @@
  * 2. Every connection runs in WAL journal mode with a busy timeout (readers do not wait for the writer;
  *    a writer waits up to `BUSY_TIMEOUT_MS` for another instead of failing with SQLITE_BUSY).
  * 3. Each statement's result is handed back after a turn of the event loop (see `afterATurn`).
+ * 4. A file database gets a second connection for reads (see `BoundSqliteDriver`).
  */
 import { BetterSqliteConnection, BetterSqliteDriver, BetterSqlitePlatform } from '@mikro-orm/better-sqlite';
 import type { Configuration, Transaction } from '@mikro-orm/core';
@@ -88,7 +89,12 @@ export class BoundSqliteDriver extends BetterSqliteDriver {
     super(config);
     // Swap the connection class the base constructor created (same config, same platform).
     (this as unknown as { connection: BoundSqliteConnection }).connection = new BoundSqliteConnection(config);
-    (this as unknown as { replicas: unknown[] }).replicas = [];
+    // A second connection to the same file for reads outside transactions (ORM finds, and raw reads asked for
+    // with `getConnection('read')`). Each connection is a pool of one: without this, every read waits for
+    // the one connection while a long write transaction (a large corpus) holds it. In WAL mode a reader sees
+    // the last committed state and never waits for the writer. An in-memory database cannot be opened twice.
+    const dbName = config.get('dbName');
+    (this as unknown as { replicas: unknown[] }).replicas = dbName && dbName !== ':memory:' ? [new BoundSqliteConnection(config, undefined, 'read')] : [];
   }
 }
 

@@ -17,7 +17,7 @@ afterEach(async () => {
 async function gatedApp() {
   const app = express();
   const holds: (() => void)[] = [];
-  app.use(requestGate(1, (path) => path === '/health'));
+  app.use(requestGate(1, (req) => req.path === '/health'));
   app.get('/health', (_req, res) => res.json({ ok: true }));
   app.get('/slow', (_req, res) => {
     holds.push(() => res.json({ slow: true }));

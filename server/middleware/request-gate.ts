@@ -2,12 +2,12 @@
  * At most `limit` API requests are worked on at once; the others wait here (costing nothing) in arrival
  * order. With every request's database and JSON steps interleaved on one event loop, 50 requests in flight
  * put a cheap request such as `GET /api/health` behind all of their steps; a short line keeps it quick.
- * Requests for which `bypass(path)` holds (health, config) never wait. A response that turns into an event
+ * Requests for which `bypass(req)` holds (health, config, file uploads: see app.ts) never wait. A response that turns into an event
  * stream (Content-Type text/event-stream) gives its place back as soon as its headers go out: it stays open
  * for as long as a page watches and must not hold a place in the line meanwhile. No path list is needed for
  * that; whatever route streams is recognised by its answer.
  */
-import type { RequestHandler, Response } from 'express';
+import type { Request, RequestHandler, Response } from 'express';
 
 function isEventStream(res: Response): boolean {
   return String(res.getHeader('content-type') ?? '').toLowerCase().startsWith('text/event-stream');
@@ -25,7 +25,7 @@ function whenStreaming(res: Response, onStream: () => void): void {
   } as Response['writeHead'];
 }
 
-export function requestGate(limit: number, bypass: (path: string) => boolean): RequestHandler {
+export function requestGate(limit: number, bypass: (req: Request) => boolean): RequestHandler {
   let active = 0;
   const waiting: (() => void)[] = [];
   const release = () => {
@@ -34,7 +34,7 @@ export function requestGate(limit: number, bypass: (path: string) => boolean): R
     else active--;
   };
   return (req, res, next) => {
-    if (bypass(req.path)) return next();
+    if (bypass(req)) return next();
     let released = false;
     const done = () => {
       if (released) return;

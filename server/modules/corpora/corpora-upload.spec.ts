@@ -160,6 +160,9 @@ describe('a good upload', () => {
     await expect(saving).rejects.toBeInstanceOf(ClientGoneError);
     expect(checks).toBe(3);
     expect(await corpusRowCounts(t)).toEqual(before);
+    // The database connection was given back: the next upload is stored.
+    const next = await upload(t, f.benchId, f.tokens.member, { name: 'after.txt', content: 'alba\nbrin\n' });
+    expect(next.status).toBe(201);
   });
 });
 

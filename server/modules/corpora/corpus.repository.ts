@@ -111,7 +111,7 @@ export class CorpusRepository {
 
   async splitCounts(corpus: Corpus): Promise<Record<SplitName, SplitCount>> {
     const rows: { split: SplitName; types: number; tokens: number }[] = await this.em
-      .getConnection()
+      .getConnection('read')
       .execute('select split, count(*) as types, sum(`count`) as tokens from corpus_words where corpus_id = ? group by split', [corpus.id]);
     const out = Object.fromEntries(SPLIT_NAMES.map((s) => [s, { types: 0, tokens: 0 }])) as Record<SplitName, SplitCount>;
     for (const r of rows) out[r.split] = { types: Number(r.types), tokens: Number(r.tokens) };
@@ -129,7 +129,8 @@ export class CorpusRepository {
       where.push('word glob ?');
       params.push(caseInsensitiveGlob(q.q));
     }
-    const conn = this.em.getConnection();
+    // The read connection: a page of words never waits for another upload's write transaction.
+    const conn = this.em.getConnection('read');
     // Without filters the total is the corpus's number of word types (stored with it): no count over every row.
     const total: { n: number }[] =
       where.length === 1 ? [{ n: corpus.types }] : await conn.execute(`select count(*) as n from corpus_words where ${where.join(' and ')}`, params);
@@ -144,7 +145,7 @@ export class CorpusRepository {
 
   /** All words, most frequent first (ties by word), for the export. */
   async allWords(corpus: Corpus): Promise<{ word: string; count: number }[]> {
-    return this.em.getConnection().execute('select word, `count` from corpus_words where corpus_id = ? order by `count` desc, word asc', [corpus.id]);
+    return this.em.getConnection('read').execute('select word, `count` from corpus_words where corpus_id = ? order by `count` desc, word asc', [corpus.id]);
   }
 }
 
