@@ -33,7 +33,9 @@ export async function startChildServer(env: Record<string, string>, opts: { dir?
   const dir = opts.dir ?? mkdtempSync(join(tmpdir(), 'noisewright-load-'));
   const port = await freePort();
   let out = '';
-  const child = spawn(process.execPath, ['--import', 'tsx', 'server/main.ts'], {
+  // LOAD_PROFILE_DIR=<dir>: the server writes a CPU profile there when it stops (for finding what holds the loop).
+  const profile = process.env['LOAD_PROFILE_DIR'] ? ['--cpu-prof', `--cpu-prof-dir=${process.env['LOAD_PROFILE_DIR']}`] : [];
+  const child = spawn(process.execPath, [...profile, '--import', 'tsx', 'server/main.ts'], {
     env: {
       ...process.env,
       NODE_ENV: 'development',

@@ -56,7 +56,7 @@ function fiveXx(counts: Record<string, number>): number {
 const ONLY = process.env['LOAD_ONLY'] ?? '';
 
 async function flood(url: string, name: string, opts: autocannon.Options): Promise<FloodRow> {
-  if (ONLY && !name.includes(ONLY)) return { flood: `${name} (skipped)`, requests: 0, floodP99Ms: 0, floodStatus: {}, healthRequests: 0, healthP50Ms: 0, healthP99Ms: 0, healthMaxMs: 0, timeouts: 0, fiveXx: 0 };
+  if (ONLY && !new RegExp(ONLY).test(name)) return { flood: `${name} (skipped)`, requests: 0, floodP99Ms: 0, floodStatus: {}, healthRequests: 0, healthP50Ms: 0, healthP99Ms: 0, healthMaxMs: 0, timeouts: 0, fiveXx: 0 };
   // Start each flood from a quiet server: work left over from the previous one must not count here.
   await new Promise((r) => setTimeout(r, 2000));
   const health = autocannon({ url: `${url}/api/health`, connections: 2, duration: Number(opts.duration ?? SECONDS), timeout: 10 });

@@ -54,8 +54,11 @@ export function createApp(config: Config, deps: AppDeps): Express {
 
   const api = Router();
   api.use(express.json({ limit: config.jsonBodyLimitBytes }));
-  // Event streams stay open for as long as a page watches: they must not hold a place in the line.
-  api.use(requestGate(config.apiConcurrency, (path) => path === '/health' || path === '/config' || /^\/benches\/[^/]+\/(runs\/[^/]+\/)?events$/.test(path)));
+  // Health and config never wait; an event stream gives its place back once it starts (request-gate.ts).
+  // File uploads do not take a place either: a slow or stalled sender would hold it for as long as its body
+  // trickles in (minutes), and their heavy steps are bounded elsewhere (parsing in the worker pool's queue,
+  // words written in small statements).
+  api.use(requestGate(config.apiConcurrency, (req) => req.path === '/health' || req.path === '/config' || req.is('multipart/form-data') === 'multipart/form-data'));
   api.use(textGuard);
   api.use((_req, _res, next) => RequestContext.create(ctx.orm.em, next));
   api.use((_req, res, next) => {

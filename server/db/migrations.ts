@@ -10,6 +10,7 @@ import { Migration20261202033904EvaluationsGridsReports } from '../migrations/Mi
 import { Migration20261205093700HWordOrderIndex } from '../migrations/Migration20261205093700_h_word_order_index';
 import { Migration20261205102200RunnersB } from '../migrations/Migration20261205102200_runners_b';
 import { Migration20261205103000SettingsKeysG } from '../migrations/Migration20261205103000_settings_keys_g';
+import { Migration20261205114500H2LeanWordIndexes } from '../migrations/Migration20261205114500_h2_lean_word_indexes';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261202000000_foundation', class: Migration20261202000000Foundation },
@@ -19,4 +20,5 @@ export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261205093700_h_word_order_index', class: Migration20261205093700HWordOrderIndex },
   { name: 'Migration20261205102200_runners_b', class: Migration20261205102200RunnersB },
   { name: 'Migration20261205103000_settings_keys_g', class: Migration20261205103000SettingsKeysG },
+  { name: 'Migration20261205114500_h2_lean_word_indexes', class: Migration20261205114500H2LeanWordIndexes },
 ];

@@ -34,7 +34,8 @@ describe('migration Migration20261205103000_settings_keys_g', () => {
     expect(JSON.parse(grid!.axes)).toEqual([{ key: 'model.embeddingSize', values: [4, 8] }]);
     expect(JSON.parse(grid!.base_settings).model).toEqual({ embeddingSize: 4, observationHidden: 0 });
 
-    await migrator.down();
+    // Back to the migration before this one (later ones, appended after it, are undone too).
+    await migrator.down({ to: 'Migration20261205102200_runners_b' });
     const back: { settings: string }[] = await conn.execute(`select settings from runs where id = 'old'`);
     expect(JSON.parse(back[0]!.settings).model).toEqual({ stateSize: 8, embedSize: 4, obsHidden: 2 });
   });

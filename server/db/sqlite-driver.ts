@@ -1,11 +1,13 @@
 /**
- * The SQLite driver we use: MikroORM's better-sqlite driver with two changes.
+ * The SQLite driver we use: MikroORM's better-sqlite driver with three changes.
  * 1. Values are bound as statement parameters instead of being written into the SQL text (MikroORM 6
  *    inlines them with its own quoting, which breaks on a NUL and puts e-mail addresses and password hashes
  *    into every failed statement's message). Statements whose parameters are lists or objects (none of ours;
  *    kept for safety) fall back to MikroORM's own path.
  * 2. Every connection runs in WAL journal mode with a busy timeout (readers do not wait for the writer;
  *    a writer waits up to `BUSY_TIMEOUT_MS` for another instead of failing with SQLITE_BUSY).
+ * 3. Each statement's result is handed back after a turn of the event loop (see `afterATurn`).
+ * 4. A file database gets a second connection for reads (see `BoundSqliteDriver`).
  */
 import { BetterSqliteConnection, BetterSqliteDriver, BetterSqlitePlatform } from '@mikro-orm/better-sqlite';
 import type { Configuration, Transaction } from '@mikro-orm/core';
@@ -25,6 +27,16 @@ function bindable(value: unknown): boolean {
     Buffer.isBuffer(value) ||
     value instanceof Uint8Array
   );
+}
+
+/**
+ * Resolves with `value` after one turn of the event loop. better-sqlite3 runs each statement synchronously and
+ * the ORM chains the next statement (of this request or, through the one-connection pool, of the next request)
+ * in promise callbacks: without a turn between them, a burst of requests runs all its statements back to back
+ * and a waiting request such as `GET /api/health` is read from its socket only after the whole burst.
+ */
+function afterATurn<T>(value: T): Promise<T> {
+  return new Promise((resolve) => setImmediate(resolve, value));
 }
 
 export class BoundSqliteConnection extends BetterSqliteConnection {
@@ -53,12 +65,12 @@ export class BoundSqliteConnection extends BetterSqliteConnection {
       sql = queryOrKnex;
     }
     if (params.length === 0 || !params.every(bindable) || sql.includes('??')) {
-      return super.execute<never>(sql, params, method, ctx, loggerContext) as Promise<T>;
+      return afterATurn(await (super.execute<never>(sql, params, method, ctx, loggerContext) as Promise<T>));
     }
     sql = this.config.get('onQuery')(sql, params);
     const bindings = params.map((p) => (p === undefined ? null : p instanceof Uint8Array && !Buffer.isBuffer(p) ? Buffer.from(p) : p)) as Knex.RawBinding[];
     // The logged text is the statement with `?` placeholders: values never reach a log line.
-    return this.executeQuery(
+    const result = await this.executeQuery<T>(
       sql,
       async () => {
         const query = this.getKnex().raw(sql, bindings);
@@ -68,6 +80,7 @@ export class BoundSqliteConnection extends BetterSqliteConnection {
       },
       { query: sql, params: [], ...loggerContext },
     );
+    return afterATurn(result);
   }
 }
 
@@ -76,7 +89,12 @@ export class BoundSqliteDriver extends BetterSqliteDriver {
     super(config);
     // Swap the connection class the base constructor created (same config, same platform).
     (this as unknown as { connection: BoundSqliteConnection }).connection = new BoundSqliteConnection(config);
-    (this as unknown as { replicas: unknown[] }).replicas = [];
+    // A second connection to the same file for reads outside transactions (ORM finds, and raw reads asked for
+    // with `getConnection('read')`). Each connection is a pool of one: without this, every read waits for
+    // the one connection while a long write transaction (a large corpus) holds it. In WAL mode a reader sees
+    // the last committed state and never waits for the writer. An in-memory database cannot be opened twice.
+    const dbName = config.get('dbName');
+    (this as unknown as { replicas: unknown[] }).replicas = dbName && dbName !== ':memory:' ? [new BoundSqliteConnection(config, undefined, 'read')] : [];
   }
 }
 

@@ -57,6 +57,22 @@ export class ServerBusyError extends HttpError {
   }
 }
 
+/**
+ * Work dropped because its client closed the connection before the answer (nobody reads this answer; the
+ * status is the common "client closed request" one, so logs tell it from a fault).
+ */
+export class ClientGoneError extends HttpError {
+  override name = 'ClientGoneError';
+  constructor() {
+    super(499, ErrorCode.ServerBusy, 'The connection closed before the answer; nothing was saved. Send the request again.');
+  }
+}
+
+/** The signal of the current request (aborts when its client goes away before the answer), if any. */
+export function currentRequestSignal(): AbortSignal | undefined {
+  return requestSignal.getStore();
+}
+
 /** The signal of the request being served: when its client goes away, its queued work is dropped. */
 const requestSignal = new AsyncLocalStorage<AbortSignal>();
 
@@ -89,7 +105,7 @@ function pump(): void {
   while (inPool < settings.threads && waiting.length > 0) {
     const next = waiting.shift()!;
     if (next.signal?.aborted) {
-      next.reject(new Error('The client went away before the work started.'));
+      next.reject(new ClientGoneError());
       continue;
     }
     inPool++;

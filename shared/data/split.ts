@@ -64,13 +64,19 @@ function validateSeed(seed: number): void {
   if (!Number.isSafeInteger(seed)) throw new Error(`The split seed must be a whole number; got ${seed}.`);
 }
 
+/** The hash state after the seed and the 0xff separator, for the last seed asked for (a corpus uses one). */
+let seedState: { seed: number; h: number } | null = null;
+/** Scratch bytes for a word's UTF-8 form (grown on demand): no new array per word. */
+let wordBytes = new Uint8Array(256);
+
 /** The position of a word in [0, 1) for a seed (the hash described above). */
 export function splitPosition(word: string, seed: number): number {
   validateSeed(seed);
-  let h = fnv1a32(encoder.encode(String(seed)));
-  h = fnv1aStep(h, 0xff);
-  h = fnv1a32(encoder.encode(word), h);
-  return fmix32(h) / 4294967296;
+  if (seedState?.seed !== seed) seedState = { seed, h: fnv1aStep(fnv1a32(encoder.encode(String(seed))), 0xff) };
+  // At most 3 UTF-8 bytes per UTF-16 unit: the scratch array always fits the whole word.
+  if (wordBytes.length < word.length * 3) wordBytes = new Uint8Array(word.length * 3);
+  const { written } = encoder.encodeInto(word, wordBytes);
+  return fmix32(fnv1a32(wordBytes.subarray(0, written), seedState.h)) / 4294967296;
 }
 
 function splitAt(u: number, shares: SplitShares): SplitName {

@@ -75,6 +75,8 @@ describe('DELETE /api/auth/account', () => {
     expect((await api().post(`/api/invitations/${duoToken}/accept`).set(bearer(f.tokens.coach))).status).toBe(200);
     // A password-reset link.
     expect((await api().post('/api/auth/reset/request').send({ email: coachEmail })).status).toBe(202);
+    // The link is stored and mailed after the answer (in the background): wait for the mail.
+    await t.mailbox.waitFor((m) => m.to === coachEmail && /reset/i.test(m.subject));
     expect(await countRows(t, 'password_reset_tokens')).toBe(1);
     // A second token of the same person (another device).
     const other = await api().post('/api/auth/signin').send({ email: coachEmail, password: TEST_PASSWORD });

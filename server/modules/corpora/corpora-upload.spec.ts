@@ -3,7 +3,12 @@ import type { CorpusDetail, CorpusInvalidBody, CorpusPreview, Problem } from '..
 import { ErrorCode } from '../../../shared/api/errors';
 import { splitOf } from '../../../shared/data/split';
 import { createBenchFixture, createTestApp, type BenchFixture, type TestApp } from '../../testing/test-app';
+import { corpusOptionsSchema } from '../../../shared/api/corpora';
+import { ClientGoneError } from '../../workers/cpu-pool';
+import { Bench } from '../benches/bench.entity';
 import { corpusRowCounts, savedWords, upload } from './corpora-test-helpers';
+import { analyseUpload } from './corpus-import';
+import { CorpusRepository } from './corpus.repository';
 
 let t: TestApp;
 let f: BenchFixture;
@@ -139,6 +144,25 @@ describe('a good upload', () => {
     expect(res.status).toBe(201);
     expect((res.body as CorpusDetail).types).toBe(20_000);
     expect((await corpusRowCounts(t)).words).toBe(before.words + 20_000);
+  });
+
+  it('rolls the whole save back when the uploader goes away after some words were written', async () => {
+    const lines = Array.from({ length: 3000 }, (_, i) => `q${i.toString(36)}z\t${1 + (i % 5)}`);
+    const analysed = analyseUpload(new TextEncoder().encode(`${lines.join('\n')}\n`), 'gone.tsv', corpusOptionsSchema.parse({ normalise: { lowerCase: false } }));
+    expect(analysed.parsed.ok).toBe(true);
+    const before = await corpusRowCounts(t);
+    // The connection "closes" once two chunks of words are in: the third check sees it.
+    let checks = 0;
+    const signal = { get aborted() { checks += 1; return checks > 2; } } as AbortSignal;
+    const em = t.orm.em.fork();
+    const bench = await em.findOneOrFail(Bench, { id: f.benchId });
+    const saving = new CorpusRepository(em).save({ bench, user: null, name: 'Gone', description: '', upload: analysed, at: new Date(), signal });
+    await expect(saving).rejects.toBeInstanceOf(ClientGoneError);
+    expect(checks).toBe(3);
+    expect(await corpusRowCounts(t)).toEqual(before);
+    // The database connection was given back: the next upload is stored.
+    const next = await upload(t, f.benchId, f.tokens.member, { name: 'after.txt', content: 'alba\nbrin\n' });
+    expect(next.status).toBe(201);
   });
 });
 

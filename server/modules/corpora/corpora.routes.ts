@@ -13,7 +13,7 @@ import { requireRole } from '../../middleware/bench-access';
 import { parseBody, parseQuery } from '../../middleware/validate';
 import { currentBench, currentUser } from '../../request-state';
 import { ActivityRepository } from '../activity/activity.repository';
-import { cpuPool } from '../../workers/cpu-pool';
+import { cpuPool, currentRequestSignal } from '../../workers/cpu-pool';
 import { savableFromPool } from './corpus-pool-result';
 import { uploadReader } from './corpus-upload';
 import { deleteDecision, runsUsingCorpus } from './corpus-usage';
@@ -75,7 +75,7 @@ export function corporaRoutes(ctx: AppContext): Router {
     }
     const { bench, role } = currentBench(req);
     const user = currentUser(req);
-    const corpus = await repo().save({ bench, user, name: fields.name, description: fields.description, upload: savableFromPool(upload.fileName, analysed), at: ctx.clock.now() });
+    const corpus = await repo().save({ bench, user, name: fields.name, description: fields.description, upload: savableFromPool(upload.fileName, analysed), at: ctx.clock.now(), signal: currentRequestSignal() });
     res.status(201).json(toCorpusDetail(corpus, canEditCorpus(corpus, user, role), preview.splitCounts));
   });
 

@@ -16,7 +16,8 @@ export class CorpusWord {
 export const CorpusWordSchema = new EntitySchema<CorpusWord>({
   class: CorpusWord,
   tableName: 'corpus_words',
-  indexes: [{ properties: ['corpus', 'split'] }, { properties: ['corpus', 'count'] }],
+  // Also (corpus_id, count desc, word) and (corpus_id, length desc, word), made by migrations (descending keys).
+  indexes: [{ properties: ['corpus', 'split'] }],
   uniques: [{ properties: ['corpus', 'word'] }],
   properties: {
     id: { type: 'integer', primary: true, autoincrement: true },

@@ -10,6 +10,7 @@ import { wordRows } from './corpus-import';
 import { CorpusWord } from './corpus-word.entity';
 import { Corpus } from './corpus.entity';
 import { caseInsensitiveGlob } from './word-search';
+import { ClientGoneError } from '../../workers/cpu-pool';
 
 /**
  * Rows per INSERT statement (5 bound parameters each stays far below SQLite's parameter limit). Small
@@ -50,9 +51,11 @@ export class CorpusRepository {
 
   /**
    * Saves a corpus (must have no errors) with all its words and an activity event in one transaction:
-   * either everything is written or nothing.
+   * either everything is written or nothing. When `signal` aborts (the uploader's connection closed) before
+   * the last words are written, the transaction is rolled back: nobody was told the corpus was saved, and
+   * the work is not finished for nobody while other uploads wait.
    */
-  async save(input: { bench: Bench; user: User | null; name: string; description: string; upload: AnalysedUpload | SavableCorpus; at: Date }): Promise<Corpus> {
+  async save(input: { bench: Bench; user: User | null; name: string; description: string; upload: AnalysedUpload | SavableCorpus; at: Date; signal?: AbortSignal }): Promise<Corpus> {
     const upload = 'splitParts' in input.upload ? savableOf(input.upload) : input.upload;
     const { parsed, options, fileName, rows } = upload;
     if (!parsed.ok || !parsed.format) throw new Error('A corpus with errors cannot be saved.');
@@ -89,6 +92,7 @@ export class CorpusRepository {
       const conn = em.getConnection();
       const tx = em.getTransactionContext();
       for (let i = 0; i < rows.length; i += INSERT_CHUNK) {
+        if (input.signal?.aborted) throw new ClientGoneError();
         const chunk = rows.slice(i, i + INSERT_CHUNK);
         const params: unknown[] = [];
         for (const r of chunk) params.push(corpus.id, r.word, r.count, r.split, r.length);
@@ -107,7 +111,7 @@ export class CorpusRepository {
 
   async splitCounts(corpus: Corpus): Promise<Record<SplitName, SplitCount>> {
     const rows: { split: SplitName; types: number; tokens: number }[] = await this.em
-      .getConnection()
+      .getConnection('read')
       .execute('select split, count(*) as types, sum(`count`) as tokens from corpus_words where corpus_id = ? group by split', [corpus.id]);
     const out = Object.fromEntries(SPLIT_NAMES.map((s) => [s, { types: 0, tokens: 0 }])) as Record<SplitName, SplitCount>;
     for (const r of rows) out[r.split] = { types: Number(r.types), tokens: Number(r.tokens) };
@@ -125,7 +129,8 @@ export class CorpusRepository {
       where.push('word glob ?');
       params.push(caseInsensitiveGlob(q.q));
     }
-    const conn = this.em.getConnection();
+    // The read connection: a page of words never waits for another upload's write transaction.
+    const conn = this.em.getConnection('read');
     // Without filters the total is the corpus's number of word types (stored with it): no count over every row.
     const total: { n: number }[] =
       where.length === 1 ? [{ n: corpus.types }] : await conn.execute(`select count(*) as n from corpus_words where ${where.join(' and ')}`, params);
@@ -140,7 +145,7 @@ export class CorpusRepository {
 
   /** All words, most frequent first (ties by word), for the export. */
   async allWords(corpus: Corpus): Promise<{ word: string; count: number }[]> {
-    return this.em.getConnection().execute('select word, `count` from corpus_words where corpus_id = ? order by `count` desc, word asc', [corpus.id]);
+    return this.em.getConnection('read').execute('select word, `count` from corpus_words where corpus_id = ? order by `count` desc, word asc', [corpus.id]);
   }
 }
 

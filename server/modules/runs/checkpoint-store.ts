@@ -7,7 +7,7 @@
 import type { CheckpointDto, CheckpointReason } from '../../../shared/api/runs';
 import type { AppContext } from '../../app-context';
 import { checkFitsRun, readCheckpoint } from './checkpoint-check';
-import { checkCheckpointValues } from './checkpoint-checks';
+import { checkCheckpointValues } from './checkpoint-value-checks';
 import { CheckpointRepository, toCheckpointDto } from './checkpoint.repository';
 import type { Run } from './run.entity';
 

@@ -21,7 +21,7 @@ import { ActivityRepository } from '../activity/activity.repository';
 import { Corpus } from '../corpora/corpus.entity';
 import { readCheckpoint, runSettingsFromCheckpoint, unusable } from './checkpoint-check';
 import { checkpointBytes, checkpointFileReader, rawCheckpointBody } from './checkpoint-upload';
-import { checkCheckpointValues } from './checkpoint-checks';
+import { checkCheckpointValues } from './checkpoint-value-checks';
 import { storeUploadedCheckpoint } from './checkpoint-store';
 import { unsafeTextProblem } from '../../../shared/api/safe-text';
 import { CheckpointRepository, toCheckpointDto } from './checkpoint.repository';

@@ -92,6 +92,23 @@ describe('metric points', () => {
     expect((await post([])).status).toBe(422);
   });
 
+  it('keeps one point per run, series and step when the same batch arrives twice (a retry after a lost answer)', async () => {
+    const batch = [
+      { series: 'train_bound', step: 700, value: -1.5 },
+      { series: 'train_bound', step: 701, value: -1.25 },
+      { series: 'valid_bound', step: 700, value: -1.75 },
+    ];
+    const rowsOfRun = async () => Number(((await t.orm.em.fork().getConnection().execute('select count(*) as n from metric_points where run_id = ?', [run.id])) as { n: number }[])[0]!.n);
+    const before = await rowsOfRun();
+    expect((await post(batch)).status).toBe(201);
+    expect(await rowsOfRun()).toBe(before + 3);
+    // The retry overlaps the first send and carries one new point.
+    expect((await post([...batch, { series: 'train_bound', step: 702, value: -1.125 }])).status).toBe(201);
+    expect(await rowsOfRun()).toBe(before + 4);
+    const read = await api().get(`${url()}?series=train_bound&sinceStep=699`).set(bearer(f.tokens.viewer));
+    expect(read.body.series.train_bound).toEqual({ steps: [700, 701, 702], values: [-1.5, -1.25, -1.125] });
+  });
+
   it('refuses new points for an archived run', async () => {
     await api().patch(`/api/benches/${f.benchId}/runs/${run.id}`).set(bearer(f.tokens.member)).send({ status: 'stopped' });
     await api().post(`/api/benches/${f.benchId}/runs/${run.id}/archive`).set(bearer(f.tokens.member)).send({});

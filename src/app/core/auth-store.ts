@@ -51,9 +51,10 @@ export class AuthStore {
     return answer.user;
   }
 
-  async signUp(email: string, password: string, displayName: string): Promise<User> {
+  /** `setupCode`: the one-time code from the server log that makes a production server's first account the admin. */
+  async signUp(email: string, password: string, displayName: string, setupCode?: string): Promise<User> {
     const answer = await firstValueFrom(
-      this.http.post<AuthResponse>('/api/auth/signup', { email, password, displayName }),
+      this.http.post<AuthResponse>('/api/auth/signup', { email, password, displayName, ...(setupCode ? { setupCode } : {}) }),
     );
     this.accept(answer);
     return answer.user;

@@ -247,3 +247,33 @@ describe('RunScheduler at the end of a run', () => {
   });
 });
 
+describe('RunScheduler metric batches', () => {
+  type Batch = { points: { series: string; step: number }[] };
+  const sentBatches = (api: { addMetrics: ReturnType<typeof vi.fn> }) => api.addMetrics.mock.calls.map((c) => (c as unknown[])[2] as Batch);
+
+  it('keeps the points of a batch that did not arrive and sends them with the next one, each once', async () => {
+    const { scheduler, worker, api } = setUp();
+    const live = await scheduler.enqueue('b1', RUN);
+    await until(() => live.state() === 'training');
+    worker.progress(10, 300);
+    // The connection drops while the first batch is on its way (status 0: no answer at all).
+    api.addMetrics.mockImplementationOnce(async () => { throw new ApiError(0, 'NETWORK', 'The server could not be reached.', {}); });
+    await scheduler.pause('run-1');
+    expect(live.problem()).toMatch(/Could not save progress/);
+    await scheduler.resume('run-1');
+    worker.progress(20, 300);
+    await scheduler.stop('run-1');
+    await until(() => live.state() === 'stopped');
+
+    const batches = sentBatches(api);
+    expect(batches.length).toBeGreaterThanOrEqual(2);
+    const failed = batches[0]!.points;
+    expect(failed.map((p) => p.step)).toContain(10);
+    const delivered = batches.slice(1).flatMap((b) => b.points);
+    // Every point of the lost batch is sent again, the new ones too, and no (series, step) twice.
+    for (const p of failed) expect(delivered).toContainEqual(p);
+    expect(delivered.map((p) => p.step)).toContain(20);
+    const keys = delivered.map((p) => `${p.series}@${p.step}`);
+    expect(new Set(keys).size).toBe(keys.length);
+  });
+});

@@ -6,6 +6,7 @@ import { TestbedHarnessEnvironment } from '@angular/cdk/testing/testbed';
 import { MatButtonHarness } from '@angular/material/button/testing';
 import { MatFormFieldHarness } from '@angular/material/form-field/testing';
 import { MatInputHarness } from '@angular/material/input/testing';
+import { MatSnackBarHarness } from '@angular/material/snack-bar/testing';
 import { provideRouter } from '@angular/router';
 import { apiErrorInterceptor, authTokenInterceptor } from '../../core/auth-interceptors';
 import { SignUp } from './sign-up';
@@ -63,5 +64,32 @@ describe('SignUp', () => {
     });
     const alert = (fixture.nativeElement as HTMLElement).querySelector('[role=alert]');
     expect(alert?.textContent).toContain('Sign in, or reset the password.');
+  });
+
+  it('asks production servers for the admin setup code, sends it, and says when it was not accepted', async () => {
+    const { fixture, loader, backend, input } = await setUp();
+    backend.expectOne('/api/config').flush({ devMode: false, maxUploadBytes: 1 });
+    await fixture.whenStable();
+    await (await input('displayName')).setValue('Sam');
+    await (await input('password')).setValue('long-enough-1');
+    await (await input('confirm')).setValue('long-enough-1');
+    await (await input('setupCode')).setValue('  mistyped-code ');
+    await (await loader.getHarness(MatButtonHarness.with({ text: 'Create account' }))).click();
+    const req = backend.expectOne('/api/auth/signup');
+    expect(req.request.body).toEqual({ email: 'sam@example.org', password: 'long-enough-1', displayName: 'Sam', setupCode: 'mistyped-code' });
+    req.flush({ token: 't', user: { id: 'u1', email: 'sam@example.org', displayName: 'Sam', isAdmin: false } }, { status: 201, statusText: 'Created' });
+    const page = TestbedHarnessEnvironment.documentRootLoader(fixture);
+    await vi.waitFor(async () => {
+      const bar = await page.getHarness(MatSnackBarHarness);
+      expect(await bar.getMessage()).toContain('not as the admin: the setup code was not accepted');
+    });
+  });
+
+  it('shows no setup-code field on a development server (its first account is the admin anyway)', async () => {
+    const { fixture, loader, backend } = await setUp();
+    backend.expectOne('/api/config').flush({ devMode: true, maxUploadBytes: 1 });
+    await fixture.whenStable();
+    expect(await loader.getAllHarnesses(MatInputHarness.with({ selector: '[formControlName=setupCode]' }))).toHaveLength(0);
+    expect(await loader.getAllHarnesses(MatInputHarness.with({ selector: '[formControlName=password]' }))).toHaveLength(1);
   });
 });

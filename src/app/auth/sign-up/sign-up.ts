@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, OnInit, inject, input, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, OnInit, computed, inject, input, signal } from '@angular/core';
 import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -6,7 +6,9 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { Router, RouterLink } from '@angular/router';
 import { ApiError } from '../../core/api-error';
+import { AppConfigStore } from '../../core/app-config-store';
 import { AuthStore } from '../../core/auth-store';
+import { Notice } from '../../core/notice';
 import {
   MIN_PASSWORD_LENGTH, controlMessage, notBlank, formProblem, passwordsMatch,
 } from '../../ui/form-messages';
@@ -25,6 +27,10 @@ export class SignUp implements OnInit {
 
   private readonly auth = inject(AuthStore);
   private readonly router = inject(Router);
+  private readonly notice = inject(Notice);
+  private readonly appConfig = inject(AppConfigStore);
+  /** Production servers only: there the first account becomes the admin with the setup code from the server log. */
+  protected readonly askSetupCode = computed(() => this.appConfig.config()?.devMode === false);
   protected readonly busy = signal(false);
   protected readonly problem = signal<string | null>(null);
   protected readonly controlMessage = controlMessage;
@@ -36,6 +42,7 @@ export class SignUp implements OnInit {
       email: ['', [Validators.required, Validators.email]],
       password: ['', [Validators.required, Validators.minLength(MIN_PASSWORD_LENGTH)]],
       confirm: ['', [Validators.required]],
+      setupCode: ['', [Validators.maxLength(64)]],
     },
     { validators: passwordsMatch('password', 'confirm') },
   );
@@ -43,6 +50,7 @@ export class SignUp implements OnInit {
   ngOnInit(): void {
     const email = this.email();
     if (email) this.form.controls.email.setValue(email);
+    void this.appConfig.load();
   }
 
   protected async submit(): Promise<void> {
@@ -53,8 +61,16 @@ export class SignUp implements OnInit {
     }
     this.busy.set(true);
     const { displayName, email, password } = this.form.getRawValue();
+    const setupCode = this.askSetupCode() ? this.form.controls.setupCode.value.trim() : '';
     try {
-      await this.auth.signUp(email.trim(), password, displayName.trim());
+      const user = await this.auth.signUp(email.trim(), password, displayName.trim(), setupCode || undefined);
+      if (setupCode && user.isAdmin) this.notice.done('The setup code was accepted: your account is the admin of this server.');
+      if (setupCode && !user.isAdmin) {
+        this.notice.problem(
+          'Your account was created, but not as the admin: the setup code was not accepted (mistyped, used already, or an admin exists). ' +
+            'Check the code in the server log, or ask the admin to make you one.',
+        );
+      }
       await this.router.navigateByUrl(safeReturnUrl(this.returnUrl()));
     } catch (error) {
       if (error instanceof ApiError && error.status === 409) {
