@@ -1,9 +1,10 @@
 /**
  * The `observationInitScale` training setting: a fresh state-space model's observation weights are multiplied by
  * it, nothing else changes, a resumed run keeps its stored weights, and runs stored without the setting train
- * with 1 (as before the setting existed).
+ * with 1 (as before the setting existed). (The new-run form's default is checked in src/app/runs/new-run.)
  */
 import { beforeAll, describe, expect, it } from 'vitest';
+import { learnabilityCells } from '../../server/modules/grids/learnability';
 import { trainingSchema } from '../api/runs';
 import { parseTrainArgs } from '../cli/train-options';
 import { NEW_RUN_TRAINING_DEFAULTS } from '../model/settings-rules';
@@ -60,15 +61,17 @@ describe('initial observation scale', () => {
     for (const e of [plain, scaled, resumed]) e.dispose();
   });
 
-  it('new runs get the default everywhere; runs stored without it train with 1', () => {
-    const t = trainingSchema.parse({ steps: 10, batchSize: 4, learningRate: 0.01 });
-    expect(t.observationInitScale).toBe(NEW_RUN_TRAINING_DEFAULTS.observationInitScale);
-    expect(parseTrainArgs(['--corpus', 'c.txt'])!.observationInitScale).toBe(NEW_RUN_TRAINING_DEFAULTS.observationInitScale);
+  it('new runs get the default (command line, learnability check); runs stored without it train with 1', () => {
+    const defaultScale = NEW_RUN_TRAINING_DEFAULTS.observationInitScale;
+    expect(parseTrainArgs(['--corpus', 'c.txt'])!.observationInitScale).toBe(defaultScale);
+    const ssmCells = learnabilityCells(100, 1, { seed: 1, shares: { train: 0.8, validation: 0.1, test: 0.1 } }).filter((c) => c.family === 'ssm');
+    for (const c of ssmCells) expect((c.settings as { training: { observationInitScale?: number } }).training.observationInitScale).toBe(defaultScale);
     expect(trainingSchema.safeParse({ steps: 10, batchSize: 4, learningRate: 0.01, observationInitScale: 0 }).success).toBe(false);
+    const stored = trainingSchema.parse({ steps: 10, batchSize: 4, learningRate: 0.01 });
+    expect(stored.observationInitScale).toBeUndefined();
     const model = { stateSize: 4, generativeFlow: [{ kind: 'diag' }], inferenceFlow: [{ kind: 'diag' }], flowHidden: 8, observationHidden: 0, embeddingSize: 4, encoderSize: 8, proposalHidden: 8 };
-    const stored = { family: 'ssm' as const, settings: { model, training: { steps: 10, batchSize: 4, learningRate: 0.01 } } };
-    expect(trainerSettingsOf(stored as never).observationInitScale).toBe(1);
-    const fresh = { family: 'ssm' as const, settings: { model, training: t } };
-    expect(trainerSettingsOf(fresh as never).observationInitScale).toBe(NEW_RUN_TRAINING_DEFAULTS.observationInitScale);
+    expect(trainerSettingsOf({ family: 'ssm', settings: { model, training: stored } } as never).observationInitScale).toBe(1);
+    const fresh = trainingSchema.parse({ steps: 10, batchSize: 4, learningRate: 0.01, observationInitScale: defaultScale });
+    expect(trainerSettingsOf({ family: 'ssm', settings: { model, training: fresh } } as never).observationInitScale).toBe(defaultScale);
   });
 });
