@@ -3,7 +3,8 @@
  *   npx tsx bench/science/recipe-table.ts bench/results/recipe-study.jsonl
  * Prints Markdown: one row per arm with its settings that differ from the defaults, held-out bits/char (IWAE bound,
  * every test word, end-of-word counted) ± standard error, bits/word, noise MI, observation entropy and step time.
- * Paired differences against a reference arm use the per-word figures (`.words` file) when both arms have them.
+ * Paired differences against a reference arm (same seed and steps) use the per-word figures (`.words` file) when both
+ * arms have them.
  */
 import { existsSync, readFileSync } from 'node:fs';
 
@@ -51,7 +52,9 @@ if (ref && perWord.has(ref)) {
   const base = perWord.get(ref) as number[];
   const first = rows.find((r) => r.label === ref) as Row;
   for (const [label, bits] of perWord) {
-    if (label === ref) continue;
+    const row = rows.find((r) => r.label === label);
+    // Only arms trained from the same seed for the same steps: across seeds the difference is mostly the seed's.
+    if (label === ref || !row || row.seed !== first.seed || row.steps !== first.steps) continue;
     const p = paired(base, bits, first.heldOutBitsPerWord / first.heldOutBitsPerChar);
     console.log(`paired ${label} − ${ref}: ${p.diff >= 0 ? '+' : ''}${p.diff.toFixed(4)} ± ${p.se.toFixed(4)} bits/char`);
   }
