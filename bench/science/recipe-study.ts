@@ -4,7 +4,10 @@
  * with the IWAE bound (K and repeats as given) and measures the noise MI and observation entropy on 100 test words.
  * Appends one JSON line to the results file. Usage:
  *   npx tsx bench/science/recipe-study.ts --label <name> [--steps 800] [--seed 1] [--out file.jsonl] [setting=value ...]
- * Settings are the fields of `ArmSettings` below; every unnamed one keeps the current defaults.
+ * Settings are the fields of `ArmSettings` below; an unnamed one keeps the defaults the study started from (the
+ * model defaults of shared/model/settings-rules.ts, Adam at a constant 0.01, clipping 5, and `observationScale` 1 —
+ * not the new default 3 of `observationInitScale`, so "defaults" arms stay comparable). Training follows the
+ * product's engine: the same batch stream and per-step noise seeds as `npm run train` with the same seed.
  */
 import { appendFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';

@@ -8,7 +8,8 @@ import type { TrainerSettings, TrainingSet } from './training-types';
 
 /**
  * Stand-ins for training settings a stored run lacks: what the trainer did before the setting existed (so an older
- * run resumes as it started). New runs store every setting (shared/api/runs.ts fills the new-run defaults).
+ * run resumes as it started). The form, presets, grids, learnability check and command line send every setting
+ * explicitly (NEW_RUN_TRAINING_DEFAULTS in shared/model/settings-rules.ts).
  */
 const DEFAULT_TRAINING = { steps: 1, batchSize: 64, samples: 8, learningRate: 0.01, clipNorm: 0, warmupSteps: 0, regime: 'token' as const, seed: 1, evalEvery: 100, observationInitScale: 1 };
 
