@@ -19,6 +19,9 @@ import { jobScript, type JobInput, type RowFigures } from './science-job';
 import { BUDGETS, plan, type RunSpec } from './science-plan';
 import { resultsMarkdown } from './science-report';
 
+/** The hand-written section of docs/RESULTS.md that a new run of the benchmark keeps. */
+const RECIPE_STUDY_HEADING = '## Training recipe study';
+
 const root = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
 const { values } = parseArgs({ options: { quick: { type: 'boolean' }, jobs: { type: 'string' } } });
 const budget = { ...BUDGETS[values.quick ? 'quick' : 'full'] };
@@ -92,6 +95,10 @@ const ctx = {
 };
 mkdirSync(join(root, 'bench', 'results'), { recursive: true });
 writeFileSync(join(root, 'bench', 'results', 'science.json'), `${JSON.stringify({ ...ctx, claims, rows }, null, 1)}\n`);
-writeFileSync(join(root, 'docs', 'RESULTS.md'), resultsMarkdown(ctx, rows, claims));
+// The training-recipe study (written by hand from bench/science/recipe-table.ts) is kept below the benchmark's part.
+const resultsFile = join(root, 'docs', 'RESULTS.md');
+const previous = existsSync(resultsFile) ? readFileSync(resultsFile, 'utf8') : '';
+const study = previous.indexOf(RECIPE_STUDY_HEADING);
+writeFileSync(resultsFile, resultsMarkdown(ctx, rows, claims) + (study >= 0 ? `\n${previous.slice(study)}` : ''));
 process.stderr.write(`Wrote docs/RESULTS.md and bench/results/science.json (${rows.length} of ${all.length} rows, ${(ctx.wallSeconds / 60).toFixed(1)} min).\n`);
 for (const c of claims) process.stderr.write(`(${c.id}) ${c.verdict}: ${c.measured}\n`);

@@ -5,7 +5,7 @@
  * come from `shared/model/settings-rules.ts` (plain constants), and a spec checks that everything agrees.
  */
 import { z } from 'zod';
-import { FLOW_KIND_NAMES, KN_DISCOUNT_RANGE, MODEL_FAMILIES, SETTING_LIMITS } from '../model/settings-rules';
+import { FLOW_KIND_NAMES, KN_DISCOUNT_RANGE, MODEL_FAMILIES, OBSERVATION_INIT_SCALE_RANGE, SETTING_LIMITS } from '../model/settings-rules';
 import { safeText } from './safe-text';
 import { runPlacementSchema, type RunLiveProgress, type RunPlacement } from './runners';
 
@@ -124,6 +124,15 @@ export const trainingSchema = z
     evalSamples: whole('a number of validation samples', 1, 4096).default(64),
     /** Save a checkpoint to the server every this many steps; 0 = only on stop. */
     checkpointEvery: whole('a checkpoint interval', 0, 1_000_000).default(500),
+    /**
+     * State-space model only: the initial observation weights are multiplied by this (1 = as built). Absent (runs
+     * stored before the setting existed, requests that leave it out) means 1 (shared/training/run-settings.ts); the
+     * form, presets, grids, learnability check and command line send NEW_RUN_TRAINING_DEFAULTS.observationInitScale.
+     */
+    observationInitScale: z.number({ error: 'Give the observation init scale as a number.' })
+      .min(OBSERVATION_INIT_SCALE_RANGE[0], `Give an observation init scale of at least ${OBSERVATION_INIT_SCALE_RANGE[0]}.`)
+      .max(OBSERVATION_INIT_SCALE_RANGE[1], `Give an observation init scale of at most ${OBSERVATION_INIT_SCALE_RANGE[1]}.`)
+      .optional(),
   })
   .strict();
 

@@ -1,7 +1,7 @@
 /** Command-line options of `npm run train` (every run setting), parsed with node:util's parseArgs. */
 import { parseArgs } from 'node:util';
 import { validateFlowSpec, type FlowSpec } from '../model/flows/flow';
-import { FLOW_KIND_NAMES, isKnDiscount, KN_DISCOUNT_RANGE, MODEL_FAMILIES, NEW_RUN_MODEL_DEFAULTS as D, SETTING_LIMITS, withinLimit, type LimitedSetting, type ModelFamilyName } from '../model/settings-rules';
+import { FLOW_KIND_NAMES, isKnDiscount, isObservationInitScale, KN_DISCOUNT_RANGE, MODEL_FAMILIES, NEW_RUN_MODEL_DEFAULTS as D, NEW_RUN_TRAINING_DEFAULTS as T, OBSERVATION_INIT_SCALE_RANGE, SETTING_LIMITS, withinLimit, type LimitedSetting, type ModelFamilyName } from '../model/settings-rules';
 
 export type ModelKind = ModelFamilyName;
 
@@ -16,6 +16,8 @@ export interface TrainOptions {
   clipNorm: number;
   samples: number;
   warmupSteps: number;
+  /** SSM: initial observation weights × this (a fresh run only). */
+  observationInitScale: number;
   stateSize: number;
   generativeFlow: FlowSpec[];
   inferenceFlow: FlowSpec[];
@@ -66,13 +68,15 @@ Model
   --order <n>                n-gram order ${SETTING_LIMITS.ngramOrder.join('-')}                                        (${D.ngramOrder})
   --discount <D>             fixed KN discount in (0, 1]; default: modified KN
 Training
-  --steps <n>                optimisation steps                                      (1000)
-  --batch-size <n>           words per batch                                         (64)
+  --steps <n>                optimisation steps                                      (${T.steps})
+  --batch-size <n>           words per batch                                         (${T.batchSize})
   --regime token|type        sample words by count or each type equally             (token)
-  --learning-rate <x>        Adam step size                                          (0.01)
-  --clip-norm <x>            global gradient-norm clipping, 0 = off                  (5)
+  --learning-rate <x>        Adam step size                                          (${T.learningRate})
+  --clip-norm <x>            global gradient-norm clipping, 0 = off                  (${T.clipNorm})
   -k, --samples <K>          importance samples per word (IWAE bound)                (${D.samples})
-  --warmup-steps <n>         warm-up of the prior/posterior terms (not a bound meanwhile) (0)
+  --warmup-steps <n>         warm-up of the prior/posterior terms (not a bound meanwhile) (${T.warmupSteps})
+  --obs-init-scale <x>       SSM: initial observation weights × x, 1 = as built; a new
+                             run only (${OBSERVATION_INIT_SCALE_RANGE.join(' to ')})                         (${T.observationInitScale})
   --seed <n>                 seed of weights, batches and noise                      (1)
   --eval-every <n>           validation figure every n steps, 0 = only at the end    (200)
                              (on a hash-random subset of at most 200 validation words, the
@@ -115,7 +119,7 @@ export function parseTrainArgs(argv: string[]): TrainOptions | null {
     options: {
       corpus: { type: 'string' }, model: { type: 'string' }, out: { type: 'string' }, steps: { type: 'string' },
       'batch-size': { type: 'string' }, regime: { type: 'string' }, 'learning-rate': { type: 'string' },
-      'clip-norm': { type: 'string' }, samples: { type: 'string', short: 'k' }, 'warmup-steps': { type: 'string' },
+      'clip-norm': { type: 'string' }, samples: { type: 'string', short: 'k' }, 'warmup-steps': { type: 'string' }, 'obs-init-scale': { type: 'string' },
       'state-size': { type: 'string' }, 'gen-flow': { type: 'string' }, 'inf-flow': { type: 'string' },
       'flow-hidden': { type: 'string' }, 'obs-hidden': { type: 'string' }, embedding: { type: 'string' },
       encoder: { type: 'string' }, 'proposal-hidden': { type: 'string' }, order: { type: 'string' },
@@ -142,12 +146,14 @@ export function parseTrainArgs(argv: string[]): TrainOptions | null {
   return {
     corpus: v.corpus, model, regime, backend,
     outDir: v.out ?? `runs/${model}-${new Date().toISOString().replace(/[:.]/g, '-')}`,
-    steps: num(v.steps, 'steps', 1000, whole(0), 'a whole number ≥ 0'),
-    batchSize: num(v['batch-size'], 'batch-size', 64, whole(1), 'a whole number ≥ 1'),
-    learningRate: num(v['learning-rate'], 'learning-rate', 0.01, pos, 'a positive number'),
-    clipNorm: num(v['clip-norm'], 'clip-norm', 5, (n) => n >= 0, '0 or a positive number'),
+    steps: num(v.steps, 'steps', T.steps, whole(0), 'a whole number ≥ 0'),
+    batchSize: num(v['batch-size'], 'batch-size', T.batchSize, whole(1), 'a whole number ≥ 1'),
+    learningRate: num(v['learning-rate'], 'learning-rate', T.learningRate, pos, 'a positive number'),
+    clipNorm: num(v['clip-norm'], 'clip-norm', T.clipNorm, (n) => n >= 0, '0 or a positive number'),
     samples: limited(v.samples, 'samples', 'samples', D.samples),
-    warmupSteps: num(v['warmup-steps'], 'warmup-steps', 0, whole(0), 'a whole number ≥ 0'),
+    warmupSteps: num(v['warmup-steps'], 'warmup-steps', T.warmupSteps, whole(0), 'a whole number ≥ 0'),
+    observationInitScale: num(v['obs-init-scale'], 'obs-init-scale', T.observationInitScale, isObservationInitScale,
+      `a number from ${OBSERVATION_INIT_SCALE_RANGE[0]} to ${OBSERVATION_INIT_SCALE_RANGE[1]}`),
     stateSize: limited(v['state-size'], 'state-size', 'stateSize', D.stateSize),
     generativeFlow: flowList(v['gen-flow'] ?? D.generativeFlow.join(','), 'generative flow (--gen-flow)'),
     inferenceFlow: flowList(v['inf-flow'] ?? D.inferenceFlow.join(','), 'inference flow (--inf-flow)'),

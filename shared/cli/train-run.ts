@@ -54,7 +54,7 @@ function trainerSettingsOfOptions(o: TrainOptions, totalSteps: number): TrainerS
     family: o.model, stateSize: o.stateSize, generativeFlow: o.generativeFlow.map((l) => l.kind), inferenceFlow: o.inferenceFlow.map((l) => l.kind),
     flowHidden: o.flowHidden, encoderSize: o.encoderSize, embeddingSize: o.embeddingSize, proposalHidden: o.proposalHidden,
     observationHidden: o.observationHidden, samples: o.samples, batchSize: o.batchSize, steps: totalSteps, learningRate: o.learningRate,
-    clipNorm: o.clipNorm, warmupSteps: o.warmupSteps, regime: o.regime, seed: o.seed, order: o.order, discount: o.discount, evalEvery: o.evalEvery,
+    clipNorm: o.clipNorm, warmupSteps: o.warmupSteps, observationInitScale: o.observationInitScale, regime: o.regime, seed: o.seed, order: o.order, discount: o.discount, evalEvery: o.evalEvery,
   };
 }
 

@@ -10,7 +10,7 @@ import { buildAlphabet } from '../data/encode';
 import { decodeCheckpoint, encodeCheckpoint } from './checkpoint';
 import { validateFlowSpec } from './flows/flow';
 import { KneserNeyModel } from './ngram-kn';
-import { FLOW_KIND_NAMES, KN_DISCOUNT_RANGE, MODEL_FAMILIES, NEW_RUN_MODEL_DEFAULTS, SETTING_LIMITS } from './settings-rules';
+import { FLOW_KIND_NAMES, KN_DISCOUNT_RANGE, MODEL_FAMILIES, NEW_RUN_MODEL_DEFAULTS, NEW_RUN_TRAINING_DEFAULTS, SETTING_LIMITS } from './settings-rules';
 import { defaultSsmSettings, validateSsmSettings } from './ssm-settings';
 
 const ssmApi = { stateSize: 8, generativeFlow: [{ kind: 'diag' }], inferenceFlow: [{ kind: 'diag' }], flowHidden: 8, observationHidden: 0, embeddingSize: 4, encoderSize: 8, proposalHidden: 8 };
@@ -84,5 +84,13 @@ describe('model-settings rules live in one place', () => {
       encoderSize: o.encoderSize, proposalHidden: o.proposalHidden, samples: o.samples, ngramOrder: o.order,
       generativeFlow: o.generativeFlow.map((l) => l.kind), inferenceFlow: o.inferenceFlow.map((l) => l.kind) })
       .toEqual({ ...d, generativeFlow: [...d.generativeFlow], inferenceFlow: [...d.inferenceFlow] });
+  });
+
+  it('the command line trains with the same training defaults as the form', () => {
+    const o = parseTrainArgs(['--corpus', 'c.txt'])!;
+    expect({ steps: o.steps, batchSize: o.batchSize, learningRate: o.learningRate, clipNorm: o.clipNorm, warmupSteps: o.warmupSteps,
+      observationInitScale: o.observationInitScale }).toEqual({ ...NEW_RUN_TRAINING_DEFAULTS });
+    expect(cli('--obs-init-scale', '0')).toBe(false);
+    expect(cli('--obs-init-scale', '2.5')).toBe(true);
   });
 });

@@ -49,3 +49,25 @@ export const NEW_RUN_MODEL_DEFAULTS = {
   samples: 8,
   ngramOrder: 3,
 } as const;
+
+/**
+ * Initial observation weights of a fresh state-space model are multiplied by this training setting (1 = as
+ * built); a sharper emission at the start lets the noise carry the characters (docs/RESULTS.md, "Training
+ * recipe study"). Inclusive range; runs stored before the setting existed train with 1.
+ */
+export const OBSERVATION_INIT_SCALE_RANGE = [0.1, 20] as const;
+export const isObservationInitScale = (x: number): boolean =>
+  Number.isFinite(x) && x >= OBSERVATION_INIT_SCALE_RANGE[0] && x <= OBSERVATION_INIT_SCALE_RANGE[1];
+
+/**
+ * Training settings of a new run: the form, the grids, the learnability check and the command line start
+ * from these (the presets change only what they name).
+ */
+export const NEW_RUN_TRAINING_DEFAULTS = {
+  steps: 1000,
+  batchSize: 64,
+  learningRate: 0.01,
+  clipNorm: 5,
+  warmupSteps: 0,
+  observationInitScale: 3,
+} as const;

@@ -22,6 +22,7 @@ import { modelFromCheckpoint, restoreTrainer, ssmCheckpoint } from '../model/ssm
 import { StateSpaceModel } from '../model/ssm';
 import { SsmTrainer } from '../model/trainer';
 import { TrainerError, TrainerErrorCode } from '../model/trainer-errors';
+import { applyObservationInitScale } from './observation-init';
 import type { EvaluationFigures, TrainerSettings, TrainingSet } from './training-types';
 
 /** Validation budgets during training (the tight estimate of the evaluation page uses far larger ones). */
@@ -101,6 +102,7 @@ function ssmEngine(c: EngineContext, ck: Checkpoint | null): RunEngine {
   }, s.seed);
   let trainer: SsmTrainer;
   try {
+    if (!ck) applyObservationInitScale(model, s.observationInitScale ?? 1);
     trainer = new SsmTrainer(model, { learningRate: s.learningRate, samples: s.samples, clipNorm: s.clipNorm, warmupSteps: s.warmupSteps });
     if (ck) restoreTrainer(trainer, ck);
   } catch (e) {

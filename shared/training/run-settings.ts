@@ -6,14 +6,19 @@ import type { GruRunSettings, NgramRunSettings, RunDto, SsmRunSettings, Training
 import { splitOf } from '../data/split';
 import type { TrainerSettings, TrainingSet } from './training-types';
 
-const DEFAULT_TRAINING = { steps: 1, batchSize: 64, samples: 8, learningRate: 0.01, clipNorm: 0, warmupSteps: 0, regime: 'token' as const, seed: 1, evalEvery: 100 };
+/**
+ * Stand-ins for training settings a stored run lacks: what the trainer did before the setting existed (so an older
+ * run resumes as it started). The form, presets, grids, learnability check and command line send every setting
+ * explicitly (NEW_RUN_TRAINING_DEFAULTS in shared/model/settings-rules.ts).
+ */
+const DEFAULT_TRAINING = { steps: 1, batchSize: 64, samples: 8, learningRate: 0.01, clipNorm: 0, warmupSteps: 0, regime: 'token' as const, seed: 1, evalEvery: 100, observationInitScale: 1 };
 
 export function trainerSettingsOf(run: Pick<RunDto, 'family' | 'settings'>): TrainerSettings {
   const t = { ...DEFAULT_TRAINING, ...(run.settings.training ?? {}) };
   const base: TrainerSettings = {
     family: run.family, stateSize: 8, generativeFlow: ['diag'], inferenceFlow: ['diag'], flowHidden: 32, encoderSize: 32,
     embeddingSize: 16, proposalHidden: 32, observationHidden: 0, samples: t.samples, batchSize: t.batchSize, steps: t.steps,
-    learningRate: t.learningRate, clipNorm: t.clipNorm, warmupSteps: t.warmupSteps, regime: t.regime, seed: t.seed, order: 3,
+    learningRate: t.learningRate, clipNorm: t.clipNorm, warmupSteps: t.warmupSteps, observationInitScale: t.observationInitScale, regime: t.regime, seed: t.seed, order: 3,
     evalEvery: t.evalEvery,
   };
   if (run.family === 'ssm') {

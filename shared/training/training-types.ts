@@ -34,6 +34,8 @@ export interface TrainerSettings {
   clipNorm: number;
   /** Warm-up steps of the prior/posterior terms, 0 = none. */
   warmupSteps: number;
+  /** State-space model: initial observation weights × this on a fresh start; absent = 1 (runs stored before it existed). */
+  observationInitScale?: number;
   regime: 'token' | 'type';
   seed: number;
   /** n-gram order 1–6 (n-gram family only). */

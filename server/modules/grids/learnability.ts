@@ -13,6 +13,7 @@ import {
   type LearnabilityVerdict,
 } from '../../../shared/api/grids';
 import type { RunFamily, RunSettings, RunStatus, RunSummary } from '../../../shared/api/runs';
+import { NEW_RUN_TRAINING_DEFAULTS as T } from '../../../shared/model/settings-rules';
 
 export interface LearnabilityCell {
   model: string;
@@ -24,7 +25,8 @@ export interface LearnabilityCell {
 /** The eleven runs of a check, in the order of the grid's single `model` axis. */
 export function learnabilityCells(budgetSteps: number, seed: number, split: NonNullable<RunSettings['split']>): LearnabilityCell[] {
   const training = {
-    steps: budgetSteps, batchSize: 32, samples: 8, learningRate: 0.01, clipNorm: 5, warmupSteps: 0, regime: 'token' as const,
+    steps: budgetSteps, batchSize: 32, samples: 8, learningRate: T.learningRate, clipNorm: T.clipNorm, warmupSteps: T.warmupSteps,
+    observationInitScale: T.observationInitScale, regime: 'token' as const,
     seed, evalEvery: Math.max(1, Math.ceil(budgetSteps / 10)), evalSamples: 64, checkpointEvery: 0,
   };
   const cells: LearnabilityCell[] = LEARNABILITY_NGRAM_ORDERS.map((order) => ({

@@ -44,6 +44,8 @@ export function settingsOf(run: RunDto): Record<string, { label: string; value: 
     out['encoderSize'] = { label: 'Encoder width', value: m.encoderSize };
     out['embeddingSize'] = { label: 'Embedding size', value: m.embeddingSize };
     out['samples'] = { label: 'Samples per word (K)', value: t.samples ?? null };
+    // Absent on runs stored before the setting existed: those trained with 1.
+    out['observationInitScale'] = { label: 'Initial emission sharpness', value: t.observationInitScale ?? 1 };
   } else if (run.family === 'gru') {
     const m = (run.settings as GruRunSettings).model;
     out['stateSize'] = { label: 'State size', value: m.stateSize };
@@ -63,7 +65,7 @@ export function settingsOf(run: RunDto): Record<string, { label: string; value: 
 }
 
 const SETTING_ORDER = ['family', 'corpus', 'status', 'stateSize', 'generativeFlow', 'inferenceFlow', 'flowHidden', 'encoderSize',
-  'embeddingSize', 'order', 'samples', 'steps', 'batchSize', 'learningRate', 'warmupSteps', 'regime', 'seed'];
+  'embeddingSize', 'order', 'samples', 'observationInitScale', 'steps', 'batchSize', 'learningRate', 'warmupSteps', 'regime', 'seed'];
 
 function differs(values: (string | number | null)[]): boolean {
   return values.length > 1 && values.some((v) => v !== values[0]);

@@ -41,7 +41,7 @@ export function baseSettingsOf(family: RunFamily, budget: GridBudget): Record<st
   const p = PRESETS.short;
   const training = {
     steps: budget.steps, batchSize: budget.batchSize, samples: p.model.samples, learningRate: budget.learningRate,
-    clipNorm: p.training.clipNorm, warmupSteps: 0, regime: 'token', seed: 1,
+    clipNorm: p.training.clipNorm, warmupSteps: 0, observationInitScale: p.training.observationInitScale, regime: 'token', seed: 1,
     evalEvery: budget.evalEvery, checkpointEvery: budget.checkpointEvery,
   };
   if (family === 'ngram') return { model: { order: 3, discount: null }, training };

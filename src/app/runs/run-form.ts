@@ -5,7 +5,7 @@
 import { FormControl, FormGroup, Validators, type AbstractControl, type ValidationErrors, type ValidatorFn } from '@angular/forms';
 import type { CreateRunRequest, RunFamily } from '../../../shared/api/runs';
 import type { FlowKind } from '../../../shared/model/flows/flow';
-import { NEW_RUN_MODEL_DEFAULTS as D, SETTING_LIMITS, type LimitedSetting } from '../../../shared/model/settings-rules';
+import { NEW_RUN_MODEL_DEFAULTS as D, NEW_RUN_TRAINING_DEFAULTS as T, OBSERVATION_INIT_SCALE_RANGE, SETTING_LIMITS, type LimitedSetting } from '../../../shared/model/settings-rules';
 import type { TrainerSettings } from '../workers/trainer-api';
 
 const whole = (min: number, max: number) => [Validators.required, Validators.min(min), Validators.max(max), Validators.pattern(/^-?\d+$/)];
@@ -46,11 +46,13 @@ export function createRunForm() {
       order: new FormControl<number>(D.ngramOrder, { nonNullable: true, validators: limit('ngramOrder') }),
     }),
     training: new FormGroup({
-      batchSize: new FormControl(64, { nonNullable: true, validators: whole(1, 4096) }),
-      steps: new FormControl(1000, { nonNullable: true, validators: whole(1, 1_000_000) }),
-      learningRate: new FormControl(0.01, { nonNullable: true, validators: [Validators.required, Validators.min(1e-6), Validators.max(1)] }),
-      clipNorm: new FormControl(5, { nonNullable: true, validators: [Validators.required, Validators.min(0), Validators.max(1e6)] }),
-      warmupSteps: new FormControl(0, { nonNullable: true, validators: whole(0, 1_000_000) }),
+      batchSize: new FormControl<number>(T.batchSize, { nonNullable: true, validators: whole(1, 4096) }),
+      steps: new FormControl<number>(T.steps, { nonNullable: true, validators: whole(1, 1_000_000) }),
+      learningRate: new FormControl<number>(T.learningRate, { nonNullable: true, validators: [Validators.required, Validators.min(1e-6), Validators.max(1)] }),
+      clipNorm: new FormControl<number>(T.clipNorm, { nonNullable: true, validators: [Validators.required, Validators.min(0), Validators.max(1e6)] }),
+      warmupSteps: new FormControl<number>(T.warmupSteps, { nonNullable: true, validators: whole(0, 1_000_000) }),
+      observationInitScale: new FormControl<number>(T.observationInitScale, { nonNullable: true,
+        validators: [Validators.required, Validators.min(OBSERVATION_INIT_SCALE_RANGE[0]), Validators.max(OBSERVATION_INIT_SCALE_RANGE[1])] }),
       regime: new FormControl<'token' | 'type'>('token', { nonNullable: true }),
       seed: new FormControl(1, { nonNullable: true, validators: whole(0, 2 ** 31 - 1) }),
       evalEvery: new FormControl(100, { nonNullable: true, validators: whole(0, 1_000_000) }),
@@ -67,13 +69,13 @@ export const PRESETS = {
   short: {
     model: { stateSize: 8, generativeFlow: ['coupling', 'diag'] as FlowKind[], inferenceFlow: ['diag'] as FlowKind[], flowHidden: 16,
       encoderSize: 32, embeddingSize: 8, proposalHidden: 16, observationHidden: 0, samples: 4 },
-    training: { batchSize: 32, steps: 300, learningRate: 0.01, clipNorm: 5, warmupSteps: 0, evalEvery: 50, checkpointEvery: 100 },
+    training: { batchSize: 32, steps: 300, learningRate: 0.01, clipNorm: 5, warmupSteps: 0, observationInitScale: T.observationInitScale, evalEvery: 50, checkpointEvery: 100 },
   },
   /** Larger K, wider networks and a warm-up: tighter bounds for a result worth reporting (common practice, no source). */
   thorough: {
     model: { stateSize: 16, generativeFlow: ['coupling', 'coupling', 'diag'] as FlowKind[], inferenceFlow: ['tril'] as FlowKind[],
       flowHidden: 64, encoderSize: 64, embeddingSize: 16, proposalHidden: 64, observationHidden: 0, samples: 16 },
-    training: { batchSize: 64, steps: 5000, learningRate: 0.003, clipNorm: 5, warmupSteps: 500, evalEvery: 250, checkpointEvery: 500 },
+    training: { batchSize: 64, steps: 5000, learningRate: 0.003, clipNorm: 5, warmupSteps: 500, observationInitScale: T.observationInitScale, evalEvery: 250, checkpointEvery: 500 },
   },
 } as const;
 
@@ -91,7 +93,8 @@ export function trainerSettingsFromForm(v: RunFormValue): TrainerSettings {
     family: m.family, stateSize: +m.stateSize, generativeFlow: m.generativeFlow, inferenceFlow: m.inferenceFlow,
     flowHidden: +m.flowHidden, encoderSize: +m.encoderSize, embeddingSize: +m.embeddingSize, proposalHidden: +m.proposalHidden,
     observationHidden: +m.observationHidden, samples: +m.samples, batchSize: +t.batchSize, steps: +t.steps,
-    learningRate: +t.learningRate, clipNorm: +t.clipNorm, warmupSteps: +t.warmupSteps, regime: t.regime, seed: +t.seed,
+    learningRate: +t.learningRate, clipNorm: +t.clipNorm, warmupSteps: +t.warmupSteps, observationInitScale: +t.observationInitScale,
+    regime: t.regime, seed: +t.seed,
     order: +m.order, evalEvery: +t.evalEvery,
   };
 }
@@ -102,7 +105,8 @@ export function createRunRequest(v: RunFormValue): CreateRunRequest {
   const split = d.ownSplit ? { split: { seed: +d.splitSeed, shares: { train: +d.train, validation: +d.validation, test: +d.test } } } : {};
   const training = {
     steps: +v.training.steps, batchSize: +v.training.batchSize, samples: +m.samples, learningRate: +v.training.learningRate,
-    clipNorm: +v.training.clipNorm, warmupSteps: +v.training.warmupSteps, regime: v.training.regime, seed: +v.training.seed,
+    clipNorm: +v.training.clipNorm, warmupSteps: +v.training.warmupSteps, observationInitScale: +v.training.observationInitScale,
+    regime: v.training.regime, seed: +v.training.seed,
     evalEvery: +v.training.evalEvery, checkpointEvery: +v.training.checkpointEvery,
   };
   const base = { name: d.name.trim(), corpusId: d.corpusId };

@@ -14,6 +14,7 @@ import { CurrentBench } from '../../benches/current-bench';
 import { RunScheduler } from '../run-scheduler';
 import { RunsApi } from '../runs-api';
 import { TimeProbe } from '../time-estimate-probe';
+import { NEW_RUN_TRAINING_DEFAULTS } from '../../../../shared/model/settings-rules';
 import { NewRun } from './new-run';
 
 const CORPUS = {
@@ -145,10 +146,11 @@ describe('NewRun form', { timeout: 30_000 }, () => {
     await (await loader.getHarness(MatSelectHarness)).clickOptions({ text: /Syllables/ });
     await (await loader.getHarness(MatButtonHarness.with({ text: /Start training/ }))).click();
     expect(create).toHaveBeenCalledTimes(1);
-    const body = (create.mock.calls[0] as unknown[])[1] as { family: string; name: string; settings: { model: { stateSize: number }; training: { steps: number } } };
+    const body = (create.mock.calls[0] as unknown[])[1] as { family: string; name: string; settings: { model: { stateSize: number }; training: { steps: number; observationInitScale?: number } } };
     expect(body.family).toBe('ssm');
     expect(body.name).toBe('First look');
     expect(body.settings.training.steps).toBe(300);
+    expect(body.settings.training.observationInitScale).toBe(NEW_RUN_TRAINING_DEFAULTS.observationInitScale);
     expect(enqueue).toHaveBeenCalledTimes(1);
   });
 

@@ -1,0 +1,83 @@
+/**
+ * Arms of the training-recipe study that are not product settings (bench/science/recipe-study.ts): a learning-rate
+ * schedule and initial values of the transition, tried and not kept (docs/RESULTS.md, "Training recipe study").
+ * The observation scale that was kept lives in shared/training/observation-init.ts.
+ */
+import type { NamedWeights } from '../../shared/model/params';
+import { SOFTPLUS_INVERSE_OF_ONE } from '../../shared/model/flows/conditioner';
+import { scaleObservationWeights } from '../../shared/training/observation-init';
+
+export interface LearningRateSchedule {
+  /** Peak learning rate. */
+  learningRate: number;
+  /** Steps of linear rise from learningRate / lrWarmupSteps to the peak; 0 = none. */
+  lrWarmupSteps: number;
+  /** After the warm-up: constant, or a cosine decay to learningRate * lrFinalFraction at `totalSteps`. */
+  lrDecay: 'none' | 'cosine';
+  lrFinalFraction: number;
+  totalSteps: number;
+}
+
+/** Learning rate of the step that follows `done` completed steps. */
+export function learningRateAt(s: LearningRateSchedule, done: number): number {
+  const peak = s.learningRate;
+  if (s.lrWarmupSteps > 0 && done < s.lrWarmupSteps) return (peak * (done + 1)) / s.lrWarmupSteps;
+  if (s.lrDecay === 'none') return peak;
+  const span = Math.max(1, s.totalSteps - s.lrWarmupSteps);
+  const progress = Math.min(1, Math.max(0, (done - s.lrWarmupSteps) / span));
+  const floor = peak * s.lrFinalFraction;
+  return floor + (peak - floor) * 0.5 * (1 + Math.cos(Math.PI * progress));
+}
+
+export interface RecipeInit {
+  /** Multiplies the initial observation weights (obs.w, or obs.w2 with a hidden layer); 1 = as built. */
+  observationScale: number;
+  /**
+   * Initial memory of the transition: the last diag layer of both flows starts with mu(c) ≈ transitionMemory * c
+   * (0 = as built: mu(c) small and unrelated to c).
+   */
+  transitionMemory: number;
+  /** Initial sigma of that diag layer (1 = as built). */
+  transitionScale: number;
+}
+
+/** What the initial values need from the model. */
+export interface RecipeModel {
+  readonly settings: { stateSize: number; flowHidden: number; observationHidden: number; generativeFlow: { kind: string }[]; inferenceFlow: { kind: string }[] };
+  getWeights(): NamedWeights;
+  setWeights(weights: NamedWeights): void;
+}
+
+/** Gain of the identity path through tanh: tanh(a x) / a ≈ x for |a x| small. */
+const IDENTITY_GAIN = 0.5;
+
+/** Writes the recipe's initial values into a freshly built model (no-op with the neutral values 1, 0, 1). */
+export function applyRecipeInit(model: RecipeModel, init: RecipeInit): void {
+  if (init.observationScale === 1 && init.transitionMemory === 0 && init.transitionScale === 1) return;
+  const w = model.getWeights();
+  const s = model.settings;
+  const d = s.stateSize;
+  scaleObservationWeights(w, s.observationHidden, init.observationScale);
+  for (const [prefix, spec] of [['gen/', s.generativeFlow], ['inf/', s.inferenceFlow]] as const) {
+    const last = spec.length - 1;
+    if (spec[last]?.kind !== 'diag') continue;
+    const name = (p: string) => `${prefix}${last}.diag.net.${p}`;
+    const w1 = w[name('w1')];
+    const w2 = w[name('w2')];
+    const b2 = w[name('b2')];
+    if (!w1 || !w2 || !b2) continue;
+    const H = s.flowHidden;
+    if (init.transitionMemory !== 0 && H >= d) {
+      // Hidden unit i < d carries c_i: w1[:, i] = a e_i, and w2[i, :] sends it to mu_i only, times memory / a.
+      for (let r = 0; r < d; r++) for (let i = 0; i < d; i++) w1.values[r * H + i] = r === i ? IDENTITY_GAIN : 0;
+      for (let i = 0; i < d; i++) {
+        for (let col = 0; col < 2 * d; col++) w2.values[i * 2 * d + col] = col === i ? init.transitionMemory / IDENTITY_GAIN : 0;
+      }
+    }
+    if (init.transitionScale !== 1) {
+      const raw = Math.log(Math.expm1(init.transitionScale));
+      for (let i = d; i < 2 * d; i++) b2.values[i] = Number.isFinite(raw) ? raw : SOFTPLUS_INVERSE_OF_ONE;
+    }
+  }
+  model.setWeights(w);
+}
