@@ -91,7 +91,8 @@ describe('runner program on the embedded back-end', () => {
     const { dto } = await latestCheckpointBytes(server.url, lab, stopped.id);
     expect(dto.step).toBe(ended.stepsDone);
 
-    const handed = await createRun('handed back', 150, 10);
+    // Long enough that the shutdown lands mid-run even on a fast machine (a tiny step takes a few ms).
+    const handed = await createRun('handed back', 1000, 10);
     await waitFor('the second run to pass step 25', async () => (await getRun(handed.id)).stepsDone >= 25, 90_000, 100);
     await first.stop();
     const back = await getRun(handed.id);
@@ -103,8 +104,8 @@ describe('runner program on the embedded back-end', () => {
     handles.push(second);
     const done = await waitFor('the handed-back run to finish on the second runner', statusIs(handed.id, 'finished', 'failed'), 120_000);
     expect(done.status, done.statusReason ?? '').toBe('finished');
-    expectWholeCurve(await trainSteps(server.url, lab, handed.id), 0, 150, 10);
-    expect(decodeCheckpoint((await latestCheckpointBytes(server.url, lab, handed.id)).bytes).step).toBe(150);
+    expectWholeCurve(await trainSteps(server.url, lab, handed.id), 0, 1000, 10);
+    expect(decodeCheckpoint((await latestCheckpointBytes(server.url, lab, handed.id)).bytes).step).toBe(1000);
     await second.stop();
   }, 300_000);
 });
