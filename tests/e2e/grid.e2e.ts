@@ -162,8 +162,14 @@ test('a learnability check started from the corpus page trains its 11 runs and s
     const verdict = await api<{ rows: { model: string; bitsPerChar: number | null }[]; ngramFloor: { bitsPerChar: number } | null;
       comparisons: { onPar: boolean | null }[] }>(`/benches/${shared.benchId}/grids/${gridId}/verdict`, shared.token);
     assert.equal(verdict.rows.length, 11, 'n-gram orders 1–5, GRU and state-space model at 8/16/32');
-    // Bits per character are positive: letter entropy of a syllable corpus lies between 1 and log2(27) ≈ 4.75 bits (closed form of the upper end).
-    for (const r of verdict.rows) assert.ok(r.bitsPerChar !== null && r.bitsPerChar > 0.5 && r.bitsPerChar < 6, `${r.model}: ${r.bitsPerChar}`);
+    // Bits per character are positive costs. The exact figures (n-grams, GRU) of a syllable corpus lie between 1 and
+    // about log2(27) ≈ 4.75 bits (closed form of the uniform cost over 26 letters and the end of word). A state-space
+    // model's figure is an upper bound after only 10 steps from a sharp random emission, so it may lie above the
+    // uniform cost; it stays finite and under twice that (common practice (no source): a sanity range).
+    for (const r of verdict.rows) {
+      const cap = r.model.startsWith('ssm') ? 2 * Math.log2(27) : 6;
+      assert.ok(r.bitsPerChar !== null && r.bitsPerChar > 0.5 && r.bitsPerChar < cap, `${r.model}: ${r.bitsPerChar}`);
+    }
     assert.ok(verdict.ngramFloor && verdict.ngramFloor.bitsPerChar === Math.min(...verdict.rows.filter((r) => r.model.startsWith('ngram')).map((r) => r.bitsPerChar!)),
       'the n-gram floor is the best n-gram');
     await page.waitForFunction(() => !/not yet known/.test(document.querySelector('[data-testid=verdict-on-par]')?.textContent ?? 'not yet known'), null, { timeout: 15_000 });

@@ -97,7 +97,7 @@ async function trainingStory(person: Awaited<ReturnType<TestBrowser['newPerson']
     await page.getByLabel(label, { exact: true }).fill(value);
   }
   await page.locator('mat-step-header', { hasText: 'Training' }).click();
-  for (const [label, value] of [['Batch size', '16'], ['Steps', '400'], ['Learning rate', '0.02'], ['Measure every (steps)', '50'],
+  for (const [label, value] of [['Batch size', '16'], ['Steps', '3000'], ['Learning rate', '0.02'], ['Measure every (steps)', '50'],
     ['Save checkpoint every (steps)', '100']] as const) {
     await page.getByLabel(label, { exact: true }).fill(value);
   }
