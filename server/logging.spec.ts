@@ -5,7 +5,7 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createApp } from './app';
 import { openDatabase, type Orm } from './db/orm';
-import { createLogger, safeError, scrubText } from './logging';
+import { createLogger, requestLogLevel, safeError, scrubText } from './logging';
 import { Mailbox } from './modules/mail/mailbox';
 import { mailboxMailer } from './modules/mail/mailer';
 import { TEST_PASSWORD, testConfig } from './testing/test-app';
@@ -67,6 +67,24 @@ describe('a database fault during sign-up', () => {
     const requestLine = lines.map((l) => JSON.parse(l) as { req?: { id: string; path: string }; res?: { status: number } }).find((l) => l.res);
     expect(requestLine?.req).toMatchObject({ id: 'probe-1', path: '/api/auth/signup' });
     expect(requestLine?.res?.status).toBe(500);
+  });
+
+  it('logs a runner call that succeeds at debug, and a refused one at info', async () => {
+    lines.length = 0;
+    // No runner token: refused (401), so it stays visible at info.
+    const refused = await request(app).post('/api/runner/heartbeat').send({});
+    expect(refused.status).toBe(401);
+    await new Promise((r) => setTimeout(r, 50));
+    const levels = lines.map((l) => JSON.parse(l) as { level: number; req?: { path: string } }).filter((l) => l.req?.path === '/api/runner/heartbeat');
+    expect(levels.map((l) => l.level)).toEqual([30]);
+  });
+
+  it('sets runner calls that succeed to debug, and keeps refusals and faults visible', () => {
+    expect(requestLogLevel('/api/runner/claim', 204)).toBe('debug');
+    expect(requestLogLevel('/api/runner/heartbeat', 200)).toBe('debug');
+    expect(requestLogLevel('/api/runner/claim', 401)).toBe('info');
+    expect(requestLogLevel('/api/runner/claim', 500)).toBe('error');
+    expect(requestLogLevel('/api/benches', 200)).toBe('info');
   });
 
   it('makes up a request id when none (or a malformed one) is sent', async () => {

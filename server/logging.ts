@@ -66,6 +66,16 @@ export function createLogger(level: LogLevel, destination?: DestinationStream): 
   return pino({ level, base: undefined, timestamp: pino.stdTimeFunctions.isoTime }, destination);
 }
 
+/**
+ * The level of a request line. A runner's routine calls (heartbeat and claim every few seconds, progress,
+ * metrics) would bury the log at `info`: when they succeed they are logged at `debug`; a refusal or a fault keeps
+ * its level.
+ */
+export function requestLogLevel(url: string, status: number, err?: unknown): 'error' | 'info' | 'debug' {
+  if (err || status >= 500) return 'error';
+  return status < 400 && url.startsWith('/api/runner/') ? 'debug' : 'info';
+}
+
 const REQUEST_ID = /^[A-Za-z0-9._-]{1,64}$/;
 
 /** pino-http with a request id, the path without its query string, and nothing else of the request. */
@@ -84,7 +94,7 @@ export function requestLogger(logger: Logger): RequestHandler {
       err: (err: unknown) => safeError(err),
     },
     wrapSerializers: false,
-    customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : res.statusCode >= 400 ? 'info' : 'info'),
+    customLogLevel: (req, res, err) => requestLogLevel(req.url ?? '', res.statusCode, err),
     autoLogging: { ignore: (req) => !(req.url ?? '').startsWith('/api/') },
   });
   return middleware as unknown as RequestHandler;
