@@ -14,8 +14,9 @@ import {
   type HarnessServer, type Lab, type RedisProcess, type RunnerProcess,
 } from './support/runner-harness';
 
-const STEPS = 40;
-const CHECKPOINT_EVERY = 5;
+// Long enough that a run is seen mid-way (progress every second) on a fast machine: a tiny step takes a few ms.
+const STEPS = 1000;
+const CHECKPOINT_EVERY = 25;
 
 let redis: RedisProcess;
 let server: HarnessServer;
