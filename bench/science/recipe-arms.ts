@@ -5,6 +5,7 @@
  */
 import type { NamedWeights } from '../../shared/model/params';
 import { SOFTPLUS_INVERSE_OF_ONE } from '../../shared/model/flows/conditioner';
+import { NEW_RUN_MODEL_DEFAULTS as D } from '../../shared/model/settings-rules';
 import { scaleObservationWeights } from '../../shared/training/observation-init';
 
 export interface LearningRateSchedule {
@@ -81,3 +82,22 @@ export function applyRecipeInit(model: RecipeModel, init: RecipeInit): void {
   }
   model.setWeights(w);
 }
+
+/** Everything one arm of the study sets (recipe-study.ts takes any of these as `setting=value`). */
+export interface ArmSettings extends RecipeInit, LearningRateSchedule {
+  stateSize: number; generativeFlow: string; inferenceFlow: string; flowHidden: number; encoderSize: number; proposalHidden: number;
+  embeddingSize: number; observationHidden: number; samples: number; batchSize: number; clipNorm: number; warmupSteps: number;
+}
+
+/**
+ * Where every arm starts (what it does not name; the table's "defaults"): the model defaults of
+ * shared/model/settings-rules.ts, Adam at a constant 0.01, clipping 5, and the neutral initial values — observation
+ * scale 1, not the product's later default 3, so that arms stay comparable. `totalSteps` is the run's own.
+ */
+export const STUDY_START: Omit<ArmSettings, 'totalSteps'> = {
+  stateSize: D.stateSize, generativeFlow: D.generativeFlow.join(','), inferenceFlow: D.inferenceFlow.join(','), flowHidden: D.flowHidden,
+  encoderSize: D.encoderSize, proposalHidden: D.proposalHidden, embeddingSize: D.embeddingSize, observationHidden: D.observationHidden,
+  samples: D.samples, batchSize: 64, clipNorm: 5, warmupSteps: 0,
+  learningRate: 0.01, lrWarmupSteps: 0, lrDecay: 'none', lrFinalFraction: 1,
+  observationScale: 1, transitionMemory: 0, transitionScale: 1,
+};

@@ -4,9 +4,8 @@
  * with the IWAE bound (K and repeats as given) and measures the noise MI and observation entropy on 100 test words.
  * Appends one JSON line to the results file. Usage:
  *   npx tsx bench/science/recipe-study.ts --label <name> [--steps 800] [--seed 1] [--out file.jsonl] [setting=value ...]
- * Settings are the fields of `ArmSettings` below; an unnamed one keeps the defaults the study started from (the
- * model defaults of shared/model/settings-rules.ts, Adam at a constant 0.01, clipping 5, and `observationScale` 1 —
- * not the new default 3 of `observationInitScale`, so "defaults" arms stay comparable). Training follows the
+ * Settings are the fields of `ArmSettings` (recipe-arms.ts); an unnamed one keeps the study's starting point
+ * `STUDY_START` there (model defaults, Adam at a constant 0.01, clipping 5, `observationScale` 1). Training follows the
  * product's engine: the same batch stream and per-step noise seeds as `npm run train` with the same seed.
  */
 import { appendFileSync } from 'node:fs';
@@ -18,18 +17,12 @@ import { heldOutSample } from '../../shared/eval/evaluation-report';
 import { noiseInformation } from '../../shared/eval/noise-information';
 import { ssmObservationEntropy } from '../../shared/eval/observation-entropy';
 import { tightEstimate } from '../../shared/eval/tight-estimate';
-import { NEW_RUN_MODEL_DEFAULTS as D } from '../../shared/model/settings-rules';
 import { StateSpaceModel } from '../../shared/model/ssm';
 import { SsmTrainer } from '../../shared/model/trainer';
 import { initNodeBackend } from '../../shared/node/tf-node';
 import { loadCorpus } from '../../shared/cli/corpus-file';
 import { buildCorpora } from './science-corpora';
-import { applyRecipeInit, learningRateAt, type RecipeInit, type LearningRateSchedule } from './recipe-arms';
-
-interface ArmSettings extends RecipeInit, LearningRateSchedule {
-  stateSize: number; generativeFlow: string; inferenceFlow: string; flowHidden: number; encoderSize: number; proposalHidden: number;
-  embeddingSize: number; observationHidden: number; samples: number; batchSize: number; clipNorm: number; warmupSteps: number;
-}
+import { applyRecipeInit, learningRateAt, STUDY_START, type ArmSettings } from './recipe-arms';
 
 const { values: v, positionals } = parseArgs({
   allowPositionals: true,
@@ -40,13 +33,7 @@ const steps = Number(v.steps ?? 800);
 const seed = Number(v.seed ?? 1);
 const evalK = Number(v.k ?? 256);
 const repeats = Number(v.repeats ?? 1);
-const arm: ArmSettings = {
-  stateSize: D.stateSize, generativeFlow: D.generativeFlow.join(','), inferenceFlow: D.inferenceFlow.join(','), flowHidden: D.flowHidden,
-  encoderSize: D.encoderSize, proposalHidden: D.proposalHidden, embeddingSize: D.embeddingSize, observationHidden: D.observationHidden,
-  samples: D.samples, batchSize: 64, clipNorm: 5, warmupSteps: 0,
-  learningRate: 0.01, lrWarmupSteps: 0, lrDecay: 'none', lrFinalFraction: 1, totalSteps: steps,
-  observationScale: 1, transitionMemory: 0, transitionScale: 1,
-};
+const arm: ArmSettings = { ...STUDY_START, totalSteps: steps };
 for (const p of positionals) {
   const [key, value] = p.split('=');
   if (!key || value === undefined || !(key in arm)) throw new Error(`Unknown setting ${p}`);

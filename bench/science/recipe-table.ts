@@ -7,6 +7,7 @@
  * arms have them.
  */
 import { existsSync, readFileSync } from 'node:fs';
+import { STUDY_START } from './recipe-arms';
 
 interface Row {
   label: string; steps: number; seed: number; arm: Record<string, number | string>; msPerStep: number; evalK: number; repeats: number;
@@ -23,11 +24,8 @@ if (existsSync(`${file}.words`)) {
     perWord.set(label, bits);
   }
 }
-const NEUTRAL: Record<string, number | string> = {
-  stateSize: 8, samples: 8, batchSize: 64, clipNorm: 5, warmupSteps: 0, learningRate: 0.01, lrWarmupSteps: 0, lrDecay: 'none',
-  lrFinalFraction: 1, observationScale: 1, transitionMemory: 0, transitionScale: 1, flowHidden: 32, encoderSize: 64, proposalHidden: 32,
-  embeddingSize: 16, observationHidden: 0, generativeFlow: 'coupling,coupling,diag', inferenceFlow: 'diag',
-};
+/** The arms' starting point: a row lists only what it changed from this. */
+const NEUTRAL: Record<string, number | string> = { ...STUDY_START };
 const changed = (r: Row) => Object.entries(r.arm).filter(([k, v]) => k in NEUTRAL && NEUTRAL[k] !== v).map(([k, v]) => `${k} ${v}`).join(', ') || 'defaults';
 
 /**

@@ -9,6 +9,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { createRng } from '../data/random';
 import { initNodeBackend } from '../node/tf-node';
 import { gruLmSequence } from './gru-lm-sequence';
+import { maxAbs, maxDiff } from './testing/array-diff';
 
 beforeAll(async () => {
   await initNodeBackend('wasm');
@@ -30,9 +31,6 @@ function loop(x: tf.Tensor3D, h0: tf.Tensor2D, uzr: tf.Tensor2D, uh: tf.Tensor2D
   }
   return tf.stack(out) as tf.Tensor3D;
 }
-
-const maxAbs = (a: ArrayLike<number>) => Array.from(a).reduce((m, v) => Math.max(m, Math.abs(v)), 0);
-const maxDiff = (a: ArrayLike<number>, b: ArrayLike<number>) => Array.from(a).reduce((m, v, i) => Math.max(m, Math.abs(v - (b[i] as number))), 0);
 
 describe('gruLmSequence', () => {
   it('gives the states and gradients of the step-by-step loop (automatic differentiation)', () => {

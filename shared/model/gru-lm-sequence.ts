@@ -38,6 +38,7 @@ export function gruLmSequence(x: tf.Tensor3D, h0: tf.Tensor2D, uzr: tf.Tensor2D,
       out.push(h);
     }
     const stacks = kept.map((list) => tf.stack(list)) as tf.Tensor3D[];
+    tf.dispose(kept.slice(1).flat()); // z, r, c, r h per step: only the stacks are used (h are the outputs and h0)
     save([...stacks, wzr, wh]);
     return {
       value: tf.stack(out) as tf.Tensor3D,

@@ -31,9 +31,12 @@ export function backwardGruSequence(xProj: tf.Tensor3D, mask: tf.Tensor3D, wh: t
     const [x, w, bias, save] = args as [tf.Tensor3D, tf.Tensor2D, tf.Tensor1D, tf.GradSaveFunc];
     // The loop computes a = m (1 - u) directly as sigm(-pre_u - PAD (1 - m)): the update gate's columns are
     // negated (sigm(-v) = 1 - sigm(v)) and padded steps are pushed to exactly 0 (sigm(-1e4) = 0 in float32).
-    const sign = tf.concat([tf.ones([H]), tf.fill([H], -1), tf.ones([H])]);
-    const pad = tf.concat([tf.zeros([T, B, H]), tf.mul(tf.sub(mask, 1), tf.fill([T, B, H], PAD)), tf.zeros([T, B, H])], 2);
-    const [xru, xn] = tf.split(tf.add(tf.mul(x, sign), pad), [2 * H, H], 2);
+    // Both as constant rows [3H] broadcast over the steps: `sign` (-1 on the update gate's columns) and `padRow`
+    // (PAD there, 0 elsewhere), so the push is (m - 1) padRow, [T, B, 1] x [3H].
+    const isUpdate = (i: number) => i >= H && i < 2 * H;
+    const sign = tf.tensor1d(Array.from({ length: H3 }, (_, i) => (isUpdate(i) ? -1 : 1)));
+    const padRow = tf.tensor1d(Array.from({ length: H3 }, (_, i) => (isUpdate(i) ? PAD : 0)));
+    const [xru, xn] = tf.split(tf.add(tf.mul(x, sign), tf.mul(tf.sub(mask, 1), padRow)), [2 * H, H], 2);
     const wSigned = tf.mul(w, sign);
     const biasSigned = tf.mul(bias, sign);
     const xrus = tf.unstack(xru as tf.Tensor) as tf.Tensor2D[];

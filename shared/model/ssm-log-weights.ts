@@ -28,7 +28,7 @@ export function computeLogWeights(
   m: LogWeightModel, batch: EncodedBatch, k: number, seed: number, beta: number, returnStates: boolean,
 ): { logW: tf.Tensor2D; states?: tf.Tensor4D } {
   const { batchSize: B, maxLen: T } = batch;
-  const { stateSize: d, vocabSize: V, encoderSize: H, proposalHidden: P } = m.settings;
+  const { stateSize: d, encoderSize: H, proposalHidden: P } = m.settings;
   const N = B * k;
   const p = (n: string) => m.param(n);
   const gen = m.generativeFlow.prepare();
@@ -62,6 +62,20 @@ export function computeLogWeights(
   const quadratic = tf.mul(tf.sub(tf.sum(tf.square(eps), 2), tf.reshape(tf.sum(tf.square(g.z), 1), [T, N])), 0.5);
   const logDets = tf.add(tf.reshape(proposalLogDets, [T, N]), tf.reshape(g.logdet, [T, N]));
   const latent = tf.reshape(tf.add(quadratic, logDets), [T, k, B]);
+  return observedLogWeights(m, batch, hs, latent, k, beta, returnStates);
+}
+
+/**
+ * log W [B, K] from the states `hs` [T, N, d] and the latent term `latent` [T, K, B]: log p(w_t | h_t) plus beta
+ * times the latent term, masked and summed over steps; and, if asked, the states as [K, B, T, d].
+ */
+export function observedLogWeights(
+  m: Pick<LogWeightModel, 'settings' | 'observationLogits'>, batch: EncodedBatch, hs: tf.Tensor3D, latent: tf.Tensor,
+  k: number, beta: number, returnStates: boolean,
+): { logW: tf.Tensor2D; states?: tf.Tensor4D } {
+  const { batchSize: B, maxLen: T } = batch;
+  const { stateSize: d, vocabSize: V } = m.settings;
+  const N = B * k;
   // log p(w_t | h_t) for all steps at once: one-hot targets [T, 1, B, V] broadcast over the K samples.
   const logProbs = tf.reshape(tf.logSoftmax(m.observationLogits(tf.reshape(hs, [T * N, d]) as tf.Tensor2D)), [T, k, B, V]);
   const idsT = tf.transpose(tf.tensor2d(batch.ids, [B, T], 'int32'));

@@ -15,6 +15,7 @@ import type { FlowSpec } from './flows/flow';
 import { StateSpaceModel } from './ssm';
 import { computeLogWeights } from './ssm-log-weights';
 import { defaultSsmSettings } from './ssm-settings';
+import { maxAbs, maxDiff } from './testing/array-diff';
 import { computeLogWeightsByAutodiff } from './testing/log-weights-by-autodiff';
 
 beforeAll(async () => {
@@ -56,9 +57,6 @@ function valueAndGrads(model: StateSpaceModel, compute: Compute, beta: number): 
     return { logW: logW as unknown as Float32Array, grads: model.variables.map((v) => (grads[v.name] as tf.Tensor).dataSync() as Float32Array) };
   });
 }
-
-const maxAbs = (a: ArrayLike<number>) => Array.from(a).reduce((m, v) => Math.max(m, Math.abs(v)), 0);
-const maxDiff = (a: ArrayLike<number>, b: ArrayLike<number>) => Array.from(a).reduce((m, v, i) => Math.max(m, Math.abs(v - (b[i] as number))), 0);
 
 function expectSame(model: StateSpaceModel, beta = 1): void {
   const fast = valueAndGrads(model, computeLogWeights, beta);

@@ -11,12 +11,12 @@
  *   L_t = sum log s + logdet f_q     (output beside h_t: [T, N, d + 1])
  * Backward, with g = (gradient reaching h_t) + (gradient from step t+1 through h_t W), dL = gradient reaching L_t:
  *   dxi, d ctxPre from the flow layers in reverse (`flows/forward-grads.ts`);  d m = dxi;
- *   d p = (dxi eps + dL / s) sigmoid(p);  d pre_q = ([d m, d p] W2^T)(1 - a^2);
+ *   d p = (dxi eps + dL / s) sigmoid(p);  d pre_q = ([d m, d p] W2^T)(1 - a^2)   (the proposal is a diag layer on
+ *   the noise, z = eps: these are that layer's backward pass in `flows/forward-grads.ts`, without d eps);
  *   gradient to h_{t-1}: [d pre_q, d ctxPre...] W^T;  d W = sum_t h_{t-1}^T d pre_t;  d bias_t = d pre_t.
  * Checked against automatic differentiation of the step-by-step code in `ssm-recurrence.spec.ts`.
  */
 import * as tf from '@tensorflow/tfjs-core';
-import { columnSums } from './bias-add';
 import { boundedScale } from './flows/conditioner';
 import type { ForwardParts } from './flows/flow-layer';
 import { forwardStepper, layerBackward, stackCount, stackedLogdet } from './flows/forward-grads';
@@ -43,6 +43,8 @@ export interface RecurrenceInputs {
 export function proposalRecurrence(x: RecurrenceInputs): tf.Tensor3D {
   const [T, N, d] = x.eps.shape;
   const P = x.w2.shape[0];
+  // The proposal is a diag layer on the noise (xi = m + s eps, [m, p] = tanh(pre_q) W2 + b2, s = softplus(p) + 1e-4).
+  const proposal: ForwardParts = { kind: 'diag', dim: d, weights: [x.w2, x.b2] };
   const splits = [P, ...x.layers.map(() => x.layerWidth)];
   const counts = x.layers.map((l) => l.weights.length);
   const layerWeights = (flat: tf.Tensor[]): tf.Tensor[][] => {
@@ -77,7 +79,7 @@ export function proposalRecurrence(x: RecurrenceInputs): tf.Tensor3D {
     const [HP, A, PQ, S] = kept.map((list) => tf.stack(list)) as tf.Tensor3D[];
     tf.dispose([...(kept[1] as tf.Tensor[]), ...(kept[2] as tf.Tensor[]), ...(kept[3] as tf.Tensor[])]); // a, p, s per step: only the stacks are used
     const layerStacks = steppers.map((st) => st.stacks());
-    let logdets = tf.sum(tf.log(S as tf.Tensor3D), 2) as tf.Tensor2D;
+    let logdets = stackedLogdet(proposal, [w2, b2], [A, PQ, S] as tf.Tensor3D[]) as tf.Tensor2D;
     x.layers.forEach((parts, i) => {
       const ld = stackedLogdet(parts, lw[i] as tf.Tensor[], layerStacks[i] as tf.Tensor3D[]);
       if (ld) logdets = tf.add(logdets, ld) as tf.Tensor2D;
@@ -99,13 +101,11 @@ export function proposalRecurrence(x: RecurrenceInputs): tf.Tensor3D {
       const n = stackCount(parts);
       return layerBackward(parts, lw[i] as tf.Tensor[], saved.slice(at, (at += n)) as tf.Tensor3D[], dL);
     });
+    // The proposal's backward pass as a diag layer's (its stacks [a, p, s, z = eps]), without a gradient for eps.
+    // (A diag layer's backward reads only W2; b2 is not saved, which would cost a copy.)
+    const proposalBack = layerBackward(proposal, [w2, x.b2], [A, PQ, S, EPS], dL, false);
     const dHs = tf.unstack(dH) as tf.Tensor2D[];
-    const slope = tf.sigmoid(PQ);
-    const cEps = tf.unstack(tf.mul(EPS, slope)) as tf.Tensor2D[];
-    const dLcL = tf.unstack(tf.mul(dL, tf.div(slope, S))) as tf.Tensor2D[]; // dL / s sigmoid(p), all steps
-    const cA = tf.unstack(tf.sub(1, tf.square(A))) as tf.Tensor2D[];
-    const [w2T, wT] = [tf.transpose(w2), tf.transpose(w)];
-    const dOuts: tf.Tensor2D[] = new Array(T);
+    const wT = tf.transpose(w);
     const dPres: tf.Tensor2D[] = new Array(T);
     let carry: tf.Tensor2D | null = null;
     for (let t = T - 1; t >= 0; t--) {
@@ -113,27 +113,22 @@ export function proposalRecurrence(x: RecurrenceInputs): tf.Tensor3D {
       const dCtx: tf.Tensor2D[] = new Array(backs.length);
       for (let i = backs.length - 1; i >= 0; i--) {
         const r = (backs[i] as ReturnType<typeof layerBackward>).step(t, g);
-        g = r.dz;
+        g = r.dz as tf.Tensor2D; // flow layers: always computed
         dCtx[i] = r.dCtx;
       }
-      const dp = tf.add(tf.mul(g, cEps[t] as tf.Tensor2D), dLcL[t] as tf.Tensor2D);
-      const dOut = tf.concat([g, dp], 1) as tf.Tensor2D;
-      const dPreQ = tf.mul(tf.matMul(dOut, w2T), cA[t] as tf.Tensor2D) as tf.Tensor2D;
+      const dPreQ = proposalBack.step(t, g).dCtx;
       const dPre = (dCtx.length ? tf.concat([dPreQ, ...dCtx], 1) : dPreQ) as tf.Tensor2D;
-      dOuts[t] = dOut;
       dPres[t] = dPre;
       carry = tf.matMul(dPre, wT) as tf.Tensor2D;
     }
     const rows = (t: tf.Tensor, c: number) => tf.reshape(t, [T * N, c]) as tf.Tensor2D;
     const dPre = tf.stack(dPres) as tf.Tensor3D;
     const C = dPre.shape[2];
-    const dOut = rows(tf.stack(dOuts), 2 * d);
     return [
       carry as tf.Tensor2D,
       tf.matMul(rows(HP, d), rows(dPre, C), true, false),
       dPre,
-      tf.matMul(rows(A, P), dOut, true, false),
-      columnSums(dOut),
+      ...proposalBack.weightGrads(),
       ...backs.flatMap((b) => b.weightGrads()),
     ];
   }

@@ -44,9 +44,10 @@ describe('initial observation scale', () => {
     scaled.dispose();
   });
 
-  it('refuses a scale that is not positive', () => {
+  it('refuses a scale outside the setting\'s range (the one rule in settings-rules.ts)', () => {
     const model = new StateSpaceModel(defaultSsmSettings(4, { stateSize: 4 }), 5);
-    expect(() => applyObservationInitScale(model, 0)).toThrow(/positive/);
+    expect(() => applyObservationInitScale(model, 0)).toThrow(/from 0\.1 to 20/);
+    expect(() => applyObservationInitScale(model, 25)).toThrow(/from 0\.1 to 20/);
     model.dispose();
   });
 

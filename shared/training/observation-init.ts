@@ -6,6 +6,7 @@
  * a resumed run keeps its stored weights.
  */
 import type { NamedWeights } from '../model/params';
+import { isObservationInitScale, OBSERVATION_INIT_SCALE_RANGE } from '../model/settings-rules';
 
 /** Multiplies the observation weights in `w` (in place) by `scale`. */
 export function scaleObservationWeights(w: NamedWeights, observationHidden: number, scale: number): void {
@@ -25,7 +26,9 @@ export interface ObservationInitModel {
 /** Applies the setting to a freshly built model (nothing to do at 1). */
 export function applyObservationInitScale(model: ObservationInitModel, scale: number): void {
   if (scale === 1) return;
-  if (!(Number.isFinite(scale) && scale > 0)) throw new Error(`The observation init scale must be a positive number; got ${scale}.`);
+  if (!isObservationInitScale(scale)) {
+    throw new Error(`The observation init scale must be a number from ${OBSERVATION_INIT_SCALE_RANGE[0]} to ${OBSERVATION_INIT_SCALE_RANGE[1]}; got ${scale}.`);
+  }
   const w = model.getWeights();
   scaleObservationWeights(w, model.settings.observationHidden, scale);
   model.setWeights(w);

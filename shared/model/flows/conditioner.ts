@@ -37,11 +37,6 @@ export function conditionerOutput(get: VariableLookup, prefix: string, pre: tf.T
   return addBias(tf.matMul(tf.tanh(pre), get(`${prefix}w2`)), get(`${prefix}b2`) as tf.Tensor1D);
 }
 
-/** Runs the conditioner on its whole input x: `tanh(x W1 + b1) W2 + b2`. */
-export function runConditioner(get: VariableLookup, prefix: string, x: tf.Tensor2D): tf.Tensor2D {
-  return conditionerOutput(get, prefix, addBias(tf.matMul(x, get(`${prefix}w1`)), get(`${prefix}b1`) as tf.Tensor1D));
-}
-
 /** `softplus(x) + 1e-4`: a positive scale bounded away from zero. */
 export function boundedScale(pre: tf.Tensor): tf.Tensor {
   return tf.add(tf.softplus(pre), SCALE_FLOOR);

@@ -131,9 +131,17 @@ class FlowStack implements ConditionalFlow {
     const single = ctx.length === 1;
     const first = ctx[0] as { w: tf.Tensor2D; b: tf.Tensor1D };
     const parts = (ctxPre: tf.Tensor2D): tf.Tensor2D[] => (single ? [ctxPre] : (tf.split(ctxPre, layers.length, 1) as tf.Tensor2D[]));
+    // The side-by-side context weights only when asked for (the training step's generative flow never is:
+    // it uses inverseFromContext), then kept for the prepared flow's lifetime.
+    let contextW: tf.Tensor2D | undefined;
+    let contextB: tf.Tensor1D | undefined;
     return {
-      contextW: single ? first.w : tf.concat(ctx.map((x) => x.w), 1),
-      contextB: single ? first.b : tf.concat(ctx.map((x) => x.b)),
+      get contextW() {
+        return (contextW ??= single ? first.w : (tf.concat(ctx.map((x) => x.w), 1) as tf.Tensor2D));
+      },
+      get contextB() {
+        return (contextB ??= single ? first.b : (tf.concat(ctx.map((x) => x.b)) as tf.Tensor1D));
+      },
       contextWidth: this.dims.hidden * layers.length,
       layers: layers.map((layer) => layer.parts),
       forward: (ctxPre, z) => {

@@ -33,8 +33,8 @@ export interface ForwardStepper {
 
 /** The backward pass of one layer over all steps (call `step` for t = T-1 down to 0). */
 export interface LayerBackward {
-  /** Gradients reaching z and ctxPre at step t, given the gradient reaching y ([N, d]). */
-  step(t: number, dy: tf.Tensor2D): { dz: tf.Tensor2D; dCtx: tf.Tensor2D };
+  /** Gradients reaching z (null when not asked for: see `layerBackward`) and ctxPre at step t, given the gradient reaching y ([N, d]). */
+  step(t: number, dy: tf.Tensor2D): { dz: tf.Tensor2D | null; dCtx: tf.Tensor2D };
   /** Gradients of `parts.weights` (same order and shapes), from all steps at once. */
   weightGrads(): tf.Tensor[];
 }
@@ -114,9 +114,10 @@ function outputLayerGrads(a: tf.Tensor3D, gs: tf.Tensor2D[]): tf.Tensor[] {
 /**
  * The backward pass of a layer from its stacks (the forward's `stacks()`), the weights it ran with and the
  * gradient reaching its log-det at every step, `dL` [T, N, 1] (known before the loop: terms in dl are taken
- * for all steps at once).
+ * for all steps at once). `inputGrad` false (diag and tril): z needs no gradient — the proposal, a diag layer on
+ * the noise — and dz is skipped (null).
  */
-export function layerBackward(parts: ForwardParts, weights: tf.Tensor[], stacks: tf.Tensor3D[], dL: tf.Tensor3D): LayerBackward {
+export function layerBackward(parts: ForwardParts, weights: tf.Tensor[], stacks: tf.Tensor3D[], dL: tf.Tensor3D, inputGrad = true): LayerBackward {
   const T = stacks[0]?.shape[0] as number;
   const dOuts: tf.Tensor2D[] = new Array(T);
   if (parts.kind === 'coupling') {
@@ -160,15 +161,15 @@ export function layerBackward(parts: ForwardParts, weights: tf.Tensor[], stacks:
   const slope = tf.sigmoid(P);
   const c1 = tf.unstack(tf.mul(Z, slope)) as tf.Tensor2D[];
   const dlc0 = tf.unstack(tf.mul(dL, tf.div(slope, S))) as tf.Tensor2D[];
-  const ss = tf.unstack(S) as tf.Tensor2D[];
+  const ss = inputGrad ? (tf.unstack(S) as tf.Tensor2D[]) : [];
   const lowerParts = parts.kind === 'tril' && parts.constants ? lowerBackward(parts.constants, stacks) : null;
   return {
     step(t, dy) {
       const dp = tf.add(tf.mul(dy, c1[t] as tf.Tensor2D), dlc0[t] as tf.Tensor2D) as tf.Tensor2D;
-      const dz = tf.mul(dy, ss[t] as tf.Tensor2D) as tf.Tensor2D;
+      const dz = inputGrad ? (tf.mul(dy, ss[t] as tf.Tensor2D) as tf.Tensor2D) : null;
       if (!lowerParts) return { dz, dCtx: finish(t, tf.concat([dy, dp], 1) as tf.Tensor2D) };
       const { dLower, dzLower } = lowerParts(t, dy);
-      return { dz: tf.add(dz, dzLower) as tf.Tensor2D, dCtx: finish(t, tf.concat([dy, dp, dLower], 1) as tf.Tensor2D) };
+      return { dz: dz && (tf.add(dz, dzLower) as tf.Tensor2D), dCtx: finish(t, tf.concat([dy, dp, dLower], 1) as tf.Tensor2D) };
     },
     weightGrads,
   };

@@ -2,29 +2,20 @@
  * The log-weight computation as it was before the hand-written gradient of the inference recurrence: every step
  * (proposal, inference flow, generative flow's inverse) in one loop, differentiated by TF.js's automatic
  * differentiation. Kept only as the reference the tests compare the faster code's values and gradients with.
+ * The observation term and masking after the loop are not part of what is compared (automatic differentiation
+ * on both sides), so they are the production code's own `observedLogWeights`.
  */
 import * as tf from '@tensorflow/tfjs-core';
 import type { EncodedBatch } from '../../data/encode';
 import { boundedScale } from '../flows/conditioner';
-import type { ConditionalFlow } from '../flows/flow';
-import type { SsmSettings } from '../ssm-settings';
-
-/** What the computation needs from the model. */
-interface LogWeightModel {
-  readonly settings: SsmSettings;
-  readonly generativeFlow: ConditionalFlow;
-  readonly inferenceFlow: ConditionalFlow;
-  param(name: string): tf.Variable;
-  encodeBackward(batch: EncodedBatch): tf.Tensor3D;
-  observationLogits(h: tf.Tensor2D): tf.Tensor2D;
-}
+import { observedLogWeights, type LogWeightModel } from '../ssm-log-weights';
 
 /** log W as [B, K] and, if asked, the sampled states as [K, B, T, d]. Call inside a tf.tidy. */
 export function computeLogWeightsByAutodiff(
   m: LogWeightModel, batch: EncodedBatch, k: number, seed: number, beta: number, returnStates: boolean,
 ): { logW: tf.Tensor2D; states?: tf.Tensor4D } {
   const { batchSize: B, maxLen: T } = batch;
-  const { stateSize: d, vocabSize: V, encoderSize: H, proposalHidden: P } = m.settings;
+  const { stateSize: d, encoderSize: H, proposalHidden: P } = m.settings;
   const N = B * k;
   const p = (n: string) => m.param(n);
   const gen = m.generativeFlow.prepare();
@@ -65,21 +56,11 @@ export function computeLogWeightsByAutodiff(
     states.push(q.y);
     hPrev = q.y;
   }
-  const hs = tf.stack(states, 0); // [T, N, d]
+  const hs = tf.stack(states, 0) as tf.Tensor3D; // [T, N, d]
   // log N(eps_t; 0, I) + logdet_g - log N(xi_t; m, s^2) + logdet_q; the -d/2 log(2 pi) terms cancel:
   // = 0.5 * (|e|^2 - |eps_t|^2) + sum log s + logdet_g + logdet_q   (xi = m + s * e).
   const quadratic = tf.mul(tf.sub(tf.sum(tf.square(eps), 2), tf.sum(tf.square(tf.stack(zs, 0)), 2)), 0.5);
   const logDets = tf.add(tf.add(tf.sum(tf.log(tf.stack(stds, 0)), 2), tf.stack(genLogDets, 0)), tf.stack(infLogDets, 0));
   const latent = tf.reshape(tf.add(quadratic, logDets), [T, k, B]);
-  // log p(w_t | h_t) for all steps at once: one-hot targets [T, 1, B, V] broadcast over the K samples.
-  const logProbs = tf.reshape(tf.logSoftmax(m.observationLogits(tf.reshape(hs, [T * N, d]) as tf.Tensor2D)), [T, k, B, V]);
-  const idsT = tf.transpose(tf.tensor2d(batch.ids, [B, T], 'int32'));
-  const target = tf.reshape(tf.cast(tf.oneHot(idsT, V), 'float32'), [T, 1, B, V]);
-  const logObs = tf.sum(tf.mul(logProbs, target), 3); // [T, K, B]
-  const perStep = tf.add(logObs, beta === 1 ? latent : tf.mul(latent, beta));
-  const mask = tf.reshape(tf.transpose(tf.tensor2d(batch.mask, [B, T])), [T, 1, B]);
-  const total = tf.sum(tf.mul(perStep, mask), 0); // masked steps add 0; [K, B]
-  const logW = tf.transpose(total) as tf.Tensor2D;
-  if (!returnStates) return { logW };
-  return { logW, states: tf.transpose(tf.reshape(hs, [T, k, B, d]), [1, 2, 0, 3]) as tf.Tensor4D };
+  return observedLogWeights(m, batch, hs, latent, k, beta, returnStates);
 }
