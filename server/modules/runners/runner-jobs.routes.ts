@@ -18,6 +18,7 @@ import { MAX_METRIC_POINTS_PER_REQUEST, type TrainingSet } from '../../../shared
 import { splitOf } from '../../../shared/data/split';
 import type { AppContext } from '../../app-context';
 import { HttpError, notFound } from '../../http-error';
+import { routineRequests } from '../../logging';
 import { parseBody, parseQuery } from '../../middleware/validate';
 import { storeUploadedCheckpoint } from '../runs/checkpoint-store';
 import { checkpointBytes, rawCheckpointBody } from '../runs/checkpoint-upload';
@@ -29,6 +30,7 @@ import { RunHeldError, RunnerJobService } from './runner-job.service';
 
 export function runnerJobRoutes(ctx: AppContext): Router {
   const router = Router();
+  router.use(routineRequests);
   router.use(requireRunner(ctx));
   const jobs = () => new RunnerJobService(ctx);
 
