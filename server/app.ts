@@ -26,11 +26,10 @@ import { ErrorCode } from '../shared/api/errors';
 import { HttpError } from './http-error';
 import './request-state';
 
-export function createApp(config: Config, deps: AppDeps): Express {
-  if (config.queueUrl && !deps.runQueue) throw new Error('createApp: QUEUE_URL is set; pass the BullMQ run queue (createRunQueue) in deps.runQueue.');
+/** The context route factories and background checks receive, from a config and the app's services. */
+export function appContext(config: Config, deps: AppDeps): AppContext {
   const logger = deps.logger ?? createLogger(config.logLevel);
-  configureCpuPool({ threads: config.workerThreads, queueLimit: config.workerQueueLimit });
-  const ctx: AppContext = {
+  return {
     config,
     orm: deps.orm,
     mailer: deps.mailer,
@@ -45,6 +44,13 @@ export function createApp(config: Config, deps: AppDeps): Express {
     runQueue: deps.runQueue ?? new EmbeddedRunQueue(),
     runEvents: deps.runEvents ?? new RunEventBus(),
   };
+}
+
+export function createApp(config: Config, deps: AppDeps): Express {
+  if (config.queueUrl && !deps.runQueue) throw new Error('createApp: QUEUE_URL is set; pass the BullMQ run queue (createRunQueue) in deps.runQueue.');
+  configureCpuPool({ threads: config.workerThreads, queueLimit: config.workerQueueLimit });
+  const ctx = appContext(config, deps);
+  const logger = ctx.logger;
   const app = express();
   app.disable('x-powered-by');
   app.use(requestLogger(logger));
