@@ -10,7 +10,7 @@ import { wordRows } from './corpus-import';
 import { CorpusWord } from './corpus-word.entity';
 import { Corpus } from './corpus.entity';
 import { caseInsensitiveGlob } from './word-search';
-import { ClientGoneError } from '../../workers/cpu-pool';
+import { ClientGoneError } from '../../middleware/client-gone';
 
 /**
  * Rows per INSERT statement (5 bound parameters each stays far below SQLite's parameter limit). Small
