@@ -200,7 +200,7 @@ export class RunnerJobService {
       };
       run.leaseExpiresAt = leaseUntil(now);
       run.updatedAt = now;
-      // The runner's own row only when its last sign of life is older than a heartbeat interval (one write less per call).
+      // The runner's own row only when its last sign of life is older than half a heartbeat interval (one write less per call).
       if (!runner.lastHeartbeatAt || now.getTime() - runner.lastHeartbeatAt.getTime() >= RUNNER_HEARTBEAT_EVERY_SECONDS * 1000 / 2) runner.lastHeartbeatAt = now;
       await this.em.flush();
       this.ctx.runEvents.publish({ name: 'progress', benchId: run.bench.id, runId: run.id, data: run.live });
