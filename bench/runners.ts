@@ -90,19 +90,11 @@ try {
   const lab = await openLab(server.url);
   const token = await runnerToken(server.url, lab, 'bench');
   const loadBefore = loadavg();
-  const times: Record<1 | 2, number[]> = { 1: [], 2: [] };
-  const cores: Record<1 | 2, number[]> = { 1: [], 2: [] };
-  const mainCpu: Record<1 | 2, number[]> = { 1: [], 2: [] };
-  const allCpu: Record<1 | 2, number[]> = { 1: [], 2: [] };
-  const startup: Record<1 | 2, number[]> = { 1: [], 2: [] };
+  const measures: Record<1 | 2, Measure[]> = { 1: [], 2: [] };
   for (let round = 0; round < ROUNDS; round++) {
     for (const threads of round % 2 === 0 ? [1, 2] as const : [2, 1] as const) {
       const m = await measureGrid(server.url, lab, token, threads, round);
-      times[threads].push(m.wallSeconds);
-      cores[threads].push(m.coresBusy);
-      allCpu[threads].push(m.cpuSeconds);
-      startup[threads].push(m.startupSeconds);
-      if (m.mainThreadCpuSeconds !== null) mainCpu[threads].push(m.mainThreadCpuSeconds);
+      measures[threads].push(m);
       process.stdout.write(`round ${round + 1}: ${threads} thread(s): ${m.wallSeconds.toFixed(1)} s for ${CELLS} runs of ${STEPS} steps ` +
         `(threads started in ${m.startupSeconds.toFixed(1)} s before), ` +
         `${m.coresBusy.toFixed(2)} cores busy on average, CPU ${m.cpuSeconds.toFixed(1)} s` +
@@ -110,27 +102,33 @@ try {
     }
   }
   const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor((xs.length - 1) / 2)] as number;
-  const one = median(times[1]);
-  const two = median(times[2]);
-  const total = (k: 1 | 2) => median(times[k].map((x, i) => x + (startup[k][i] ?? 0)));
+  const r2 = (x: number) => Number(x.toFixed(2));
+  /** One figure of every grid, per thread count (rounded to 2 decimals); a null figure (no /proc) is left out. */
+  const each = (figure: (m: Measure) => number | null) => {
+    const of = (k: 1 | 2) => measures[k].map(figure).filter((x): x is number => x !== null).map(r2);
+    return { oneThread: of(1), twoThreads: of(2) };
+  };
+  const one = median(measures[1].map((m) => m.wallSeconds));
+  const two = median(measures[2].map((m) => m.wallSeconds));
+  const total = (k: 1 | 2) => median(measures[k].map((m) => m.wallSeconds + m.startupSeconds));
   const result = {
     what: `${CELLS}-cell grid of ${STEPS}-step state-space runs (state 8, K 4, batch 32), embedded back-end, runner threads in one process`,
     measuredAt: new Date().toISOString(),
     cpu: cpus()[0]?.model ?? 'unknown', cores: availableParallelism(),
-    loadAverageBefore: loadBefore.map((x) => Number(x.toFixed(2))), loadAverageAfter: loadavg().map((x) => Number(x.toFixed(2))),
-    wallSeconds: { oneThread: times[1].map((x) => Number(x.toFixed(2))), twoThreads: times[2].map((x) => Number(x.toFixed(2))) },
-    medianWallSeconds: { oneThread: Number(one.toFixed(2)), twoThreads: Number(two.toFixed(2)) },
+    loadAverageBefore: loadBefore.map(r2), loadAverageAfter: loadavg().map(r2),
+    wallSeconds: each((m) => m.wallSeconds),
+    medianWallSeconds: { oneThread: r2(one), twoThreads: r2(two) },
     /** CPU seconds of this process per wall second: how many cores the runs actually got. */
-    coresUsed: { oneThread: cores[1].map((x) => Number(x.toFixed(2))), twoThreads: cores[2].map((x) => Number(x.toFixed(2))) },
+    coresUsed: each((m) => m.coresBusy),
     /** CPU seconds per grid: the whole process, and its main thread (server, runner main thread, the bench's polling). */
-    cpuSeconds: { oneThread: allCpu[1].map((x) => Number(x.toFixed(2))), twoThreads: allCpu[2].map((x) => Number(x.toFixed(2))) },
-    mainThreadCpuSeconds: { oneThread: mainCpu[1].map((x) => Number(x.toFixed(2))), twoThreads: mainCpu[2].map((x) => Number(x.toFixed(2))) },
-    speedUp: Number((one / two).toFixed(2)),
+    cpuSeconds: each((m) => m.cpuSeconds),
+    mainThreadCpuSeconds: each((m) => m.mainThreadCpuSeconds),
+    speedUp: r2(one / two),
     target: 1.7,
     /** Seconds from starting the runner until its threads had loaded TF.js and the WASM backend (before each grid). */
-    startupSeconds: { oneThread: startup[1].map((x) => Number(x.toFixed(2))), twoThreads: startup[2].map((x) => Number(x.toFixed(2))) },
+    startupSeconds: each((m) => m.startupSeconds),
     /** The same comparison with each runner's start-up added to its grid (a runner started for one grid only). */
-    speedUpWithStartup: Number((total(1) / total(2)).toFixed(2)),
+    speedUpWithStartup: r2(total(1) / total(2)),
     note: 'Wall time from creating the grid until the server recorded its last run as finished; the runner was started before ' +
       'and its threads had loaded (startupSeconds, also folded into speedUpWithStartup). Other processes shared the ' +
       'machine (see the load averages); when they keep both cores busy, a second thread gets no more CPU (coresUsed) and the ' +

@@ -17,7 +17,8 @@ import { securityHeaders } from './middleware/security-headers';
 import { textGuard } from './middleware/text-guard';
 import { requestGate } from './middleware/request-gate';
 import { createLogger, loggerOf, requestLogger, safeError } from './logging';
-import { cancelWorkOnClose, configureCpuPool } from './workers/cpu-pool';
+import { cancelWorkOnClose } from './middleware/client-gone';
+import { configureCpuPool } from './workers/cpu-pool';
 import { AdminSetup } from './modules/auth/admin-setup';
 import { serverModules } from './modules/registry';
 import { EmbeddedRunQueue } from './modules/runners/queue/run-queue';
@@ -26,11 +27,10 @@ import { ErrorCode } from '../shared/api/errors';
 import { HttpError } from './http-error';
 import './request-state';
 
-export function createApp(config: Config, deps: AppDeps): Express {
-  if (config.queueUrl && !deps.runQueue) throw new Error('createApp: QUEUE_URL is set; pass the BullMQ run queue (createRunQueue) in deps.runQueue.');
+/** The context route factories and background checks receive, from a config and the app's services. */
+export function appContext(config: Config, deps: AppDeps): AppContext {
   const logger = deps.logger ?? createLogger(config.logLevel);
-  configureCpuPool({ threads: config.workerThreads, queueLimit: config.workerQueueLimit });
-  const ctx: AppContext = {
+  return {
     config,
     orm: deps.orm,
     mailer: deps.mailer,
@@ -45,6 +45,13 @@ export function createApp(config: Config, deps: AppDeps): Express {
     runQueue: deps.runQueue ?? new EmbeddedRunQueue(),
     runEvents: deps.runEvents ?? new RunEventBus(),
   };
+}
+
+export function createApp(config: Config, deps: AppDeps): Express {
+  if (config.queueUrl && !deps.runQueue) throw new Error('createApp: QUEUE_URL is set; pass the BullMQ run queue (createRunQueue) in deps.runQueue.');
+  configureCpuPool({ threads: config.workerThreads, queueLimit: config.workerQueueLimit });
+  const ctx = appContext(config, deps);
+  const logger = ctx.logger;
   const app = express();
   app.disable('x-powered-by');
   app.use(requestLogger(logger));

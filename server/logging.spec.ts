@@ -7,6 +7,7 @@ import { createApp } from './app';
 import { openDatabase, type Orm } from './db/orm';
 import { createLogger, requestLogLevel, safeError, scrubText } from './logging';
 import { Mailbox } from './modules/mail/mailbox';
+import { RunnerRepository } from './modules/runners/runner.repository';
 import { mailboxMailer } from './modules/mail/mailer';
 import { TEST_PASSWORD, testConfig } from './testing/test-app';
 import { mkdtempSync, rmSync } from 'node:fs';
@@ -37,12 +38,12 @@ describe('a database fault during sign-up', () => {
 
   beforeAll(async () => {
     dir = mkdtempSync(join(tmpdir(), 'noisewright-log-'));
-    const config = testConfig(dir, { LOG_LEVEL: 'info' });
+    const config = testConfig(dir, { LOG_LEVEL: 'debug' });
     orm = await openDatabase(config.databasePath);
     await orm.em.fork().getConnection().execute("create trigger refuse_users before insert on users begin select raise(abort, 'refused by test trigger'); end");
     const sink = new Writable({ write: (chunk, _enc, done) => (lines.push(String(chunk)), done()) });
     const mailbox = new Mailbox();
-    app = createApp(config, { orm, mailer: mailboxMailer(mailbox, config.mailFrom), mailbox, logger: createLogger('info', sink) });
+    app = createApp(config, { orm, mailer: mailboxMailer(mailbox, config.mailFrom), mailbox, logger: createLogger('debug', sink) });
   });
   afterAll(async () => {
     await orm.close(true);
@@ -69,22 +70,33 @@ describe('a database fault during sign-up', () => {
     expect(requestLine?.res?.status).toBe(500);
   });
 
-  it('logs a runner call that succeeds at debug, and a refused one at info', async () => {
+  it('logs a runner call that succeeds at debug, and a refused one and other calls at info', async () => {
+    const em = orm.em.fork();
+    const { token } = new RunnerRepository(em).create('Log probe', 'remote', new Date());
+    await em.flush();
     lines.length = 0;
+    const ok = await request(app).post('/api/runner/heartbeat').set('Authorization', `Bearer ${token}`).send({ threads: 1, jobs: [] });
+    expect(ok.status).toBe(200);
     // No runner token: refused (401), so it stays visible at info.
     const refused = await request(app).post('/api/runner/heartbeat').send({});
     expect(refused.status).toBe(401);
+    expect((await request(app).get('/api/health')).status).toBe(200);
     await new Promise((r) => setTimeout(r, 50));
-    const levels = lines.map((l) => JSON.parse(l) as { level: number; req?: { path: string } }).filter((l) => l.req?.path === '/api/runner/heartbeat');
-    expect(levels.map((l) => l.level)).toEqual([30]);
+    const requestLines = lines.map((l) => JSON.parse(l) as { level: number; req?: { path: string }; res?: { status: number } }).filter((l) => l.res);
+    expect(requestLines.map((l) => [l.req?.path, l.res?.status, l.level])).toEqual([
+      ['/api/runner/heartbeat', 200, 20],
+      ['/api/runner/heartbeat', 401, 30],
+      ['/api/health', 200, 30],
+    ]);
   });
 
-  it('sets runner calls that succeed to debug, and keeps refusals and faults visible', () => {
-    expect(requestLogLevel('/api/runner/claim', 204)).toBe('debug');
-    expect(requestLogLevel('/api/runner/heartbeat', 200)).toBe('debug');
-    expect(requestLogLevel('/api/runner/claim', 401)).toBe('info');
-    expect(requestLogLevel('/api/runner/claim', 500)).toBe('error');
-    expect(requestLogLevel('/api/benches', 200)).toBe('info');
+  it('sets routine calls that succeed to debug, and keeps refusals and faults visible', () => {
+    expect(requestLogLevel(true, 204)).toBe('debug');
+    expect(requestLogLevel(true, 200)).toBe('debug');
+    expect(requestLogLevel(true, 401)).toBe('info');
+    expect(requestLogLevel(true, 500)).toBe('error');
+    expect(requestLogLevel(true, 200, new Error('boom'))).toBe('error');
+    expect(requestLogLevel(false, 200)).toBe('info');
   });
 
   it('makes up a request id when none (or a malformed one) is sent', async () => {

@@ -66,14 +66,23 @@ export function createLogger(level: LogLevel, destination?: DestinationStream): 
   return pino({ level, base: undefined, timestamp: pino.stdTimeFunctions.isoTime }, destination);
 }
 
+/** Responses of routine requests (marked by `routineRequests`): logged at `debug` when they succeed. */
+const routine = new WeakSet<object>();
+
 /**
- * The level of a request line. A runner's routine calls (heartbeat and claim every few seconds, progress,
- * metrics) would bury the log at `info`: when they succeed they are logged at `debug`; a refusal or a fault keeps
- * its level.
+ * Marks the requests of a router as routine: a runner's calls (heartbeat and claim every few seconds,
+ * progress, metrics) would bury the log at `info`. The router says so itself, so the level does not depend on
+ * the path a request line shows (a router sees its path without its mount prefix).
  */
-export function requestLogLevel(url: string, status: number, err?: unknown): 'error' | 'info' | 'debug' {
+export const routineRequests: RequestHandler = (_req, res, next) => {
+  routine.add(res);
+  next();
+};
+
+/** The level of a request line: faults `error`, a routine request that succeeds `debug`, else `info`. */
+export function requestLogLevel(isRoutine: boolean, status: number, err?: unknown): 'error' | 'info' | 'debug' {
   if (err || status >= 500) return 'error';
-  return status < 400 && url.startsWith('/api/runner/') ? 'debug' : 'info';
+  return status < 400 && isRoutine ? 'debug' : 'info';
 }
 
 const REQUEST_ID = /^[A-Za-z0-9._-]{1,64}$/;
@@ -94,7 +103,7 @@ export function requestLogger(logger: Logger): RequestHandler {
       err: (err: unknown) => safeError(err),
     },
     wrapSerializers: false,
-    customLogLevel: (req, res, err) => requestLogLevel(req.url ?? '', res.statusCode, err),
+    customLogLevel: (_req, res, err) => requestLogLevel(routine.has(res), res.statusCode, err),
     autoLogging: { ignore: (req) => !(req.url ?? '').startsWith('/api/') },
   });
   return middleware as unknown as RequestHandler;

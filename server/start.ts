@@ -5,7 +5,7 @@
  */
 import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
-import { createApp } from './app';
+import { appContext, createApp } from './app';
 import { systemClock, type Clock } from './clock';
 import type { Config } from './config';
 import { openDatabase, type Orm } from './db/orm';
@@ -18,7 +18,7 @@ import { watchLeases } from './modules/runners/lease-expiry';
 import { RunEventBus } from './modules/runners/run-events';
 import { ensureQueuedJobs, prepareEmbeddedRunner, releaseEmbeddedRuns } from './modules/runners/runner-startup';
 import { seedDemoIfEmpty } from './seeders/demo-seed';
-import { createLogger, safeError } from './logging';
+import { createLogger } from './logging';
 import { cpuPool } from './workers/cpu-pool';
 import { AdminSetup } from './modules/auth/admin-setup';
 import { UserRepository } from './modules/users/user.repository';
@@ -113,10 +113,10 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
 
     const adminSetup = new AdminSetup(config);
     adminSetup.announce(logger, await new UserRepository(orm.em.fork()).countAdmins());
-    server.on('request', createApp(config, { orm, mailer, mailbox, clock, logger, adminSetup, runQueue, runEvents }));
+    const deps = { orm, mailer, mailbox, clock, logger, adminSetup, runQueue, runEvents };
+    server.on('request', createApp(config, deps));
     // Runner runs whose runner stopped answering go back to waiting as soon as their lease runs out.
-    const logError = (error: unknown) => logger.error({ err: safeError(error) }, 'lease check failed');
-    cleanups.push(watchLeases({ config, orm, mailer, mailbox, clock, logger, adminSetup, logError, runQueue, runEvents }));
+    cleanups.push(watchLeases(appContext(config, deps)));
 
     let runnerThreads = 0;
     if (embedded) {

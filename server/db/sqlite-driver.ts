@@ -1,5 +1,5 @@
 /**
- * The SQLite driver we use: MikroORM's better-sqlite driver with three changes.
+ * The SQLite driver we use: MikroORM's better-sqlite driver with four changes.
  * 1. Values are bound as statement parameters instead of being written into the SQL text (MikroORM 6
  *    inlines them with its own quoting, which breaks on a NUL and puts e-mail addresses and password hashes
  *    into every failed statement's message). Statements whose parameters are lists or objects (none of ours;

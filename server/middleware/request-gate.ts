@@ -2,27 +2,18 @@
  * At most `limit` API requests are worked on at once; the others wait here (costing nothing) in arrival
  * order. With every request's database and JSON steps interleaved on one event loop, 50 requests in flight
  * put a cheap request such as `GET /api/health` behind all of their steps; a short line keeps it quick.
- * Requests for which `bypass(req)` holds (health, config, file uploads: see app.ts) never wait. A response that turns into an event
- * stream (Content-Type text/event-stream) gives its place back as soon as its headers go out: it stays open
- * for as long as a page watches and must not hold a place in the line meanwhile. No path list is needed for
- * that; whatever route streams is recognised by its answer.
+ * Requests for which `bypass(req)` holds (health, config, file uploads: see app.ts) never wait. A handler whose
+ * answer stays open (an event stream, for as long as a page watches) calls `leaveRequestLine(res)` once it
+ * starts streaming: it must not hold a place in the line meanwhile.
  */
 import type { Request, RequestHandler, Response } from 'express';
 
-function isEventStream(res: Response): boolean {
-  return String(res.getHeader('content-type') ?? '').toLowerCase().startsWith('text/event-stream');
-}
+/** How to give back the place of a response that holds one. */
+const places = new WeakMap<Response, () => void>();
 
-/** Calls `onStream` once, when the response's headers are written with an event-stream Content-Type. */
-function whenStreaming(res: Response, onStream: () => void): void {
-  const writeHead = res.writeHead;
-  res.writeHead = function (this: Response, ...args: Parameters<Response['writeHead']>) {
-    const out = writeHead.apply(this, args);
-    const headers = (args as unknown[]).find((a) => typeof a === 'object' && a !== null && !Array.isArray(a)) as Record<string, unknown> | undefined;
-    const given = headers ? Object.entries(headers).find(([k]) => k.toLowerCase() === 'content-type')?.[1] : undefined;
-    if (isEventStream(this) || String(given ?? '').toLowerCase().startsWith('text/event-stream')) onStream();
-    return out;
-  } as Response['writeHead'];
+/** Gives the response's place in the line back now (it stays open long; it costs nothing while it waits). */
+export function leaveRequestLine(res: Response): void {
+  places.get(res)?.();
 }
 
 export function requestGate(limit: number, bypass: (req: Request) => boolean): RequestHandler {
@@ -44,7 +35,7 @@ export function requestGate(limit: number, bypass: (req: Request) => boolean): R
     const go = () => {
       res.once('finish', done);
       res.once('close', done);
-      whenStreaming(res, done);
+      places.set(res, done);
       next();
     };
     if (active < limit) {

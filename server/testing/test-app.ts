@@ -8,7 +8,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import request from 'supertest';
 import type { AuthResponse, Role } from '../../shared/api/types';
-import { createApp } from '../app';
+import { appContext, createApp } from '../app';
+import type { AppContext, AppDeps } from '../app-context';
 import { ManualClock } from '../clock';
 import { loadConfig, type Config } from '../config';
 import { openDatabase, type Orm } from '../db/orm';
@@ -33,6 +34,8 @@ export interface TestApp {
   /** The run queue (embedded, or BullMQ when the env sets QUEUE_URL) and the event bus of server-sent events. */
   runQueue: RunQueue;
   runEvents: RunEventBus;
+  /** A context with the app's services, for code the server runs outside requests (background checks). */
+  ctx: AppContext;
   /** Errors the app logged (unexpected 500s and failed background sends), oldest first. */
   readonly serverErrors: unknown[];
   /** Returns the logged server errors and forgets them: call it in a test that provokes a 500 on purpose. */
@@ -69,7 +72,7 @@ export async function createTestApp(env: Record<string, string> = {}): Promise<T
   const errors: unknown[] = [];
   const runQueue = createRunQueue(config);
   const runEvents = new RunEventBus();
-  const app = createApp(config, {
+  const deps: AppDeps = {
     orm,
     mailer: mailboxMailer(mailbox, config.mailFrom),
     mailbox,
@@ -77,9 +80,11 @@ export async function createTestApp(env: Record<string, string> = {}): Promise<T
     logError: (error) => errors.push(error),
     runQueue,
     runEvents,
-  });
+  };
+  const app = createApp(config, deps);
   return {
     app,
+    ctx: appContext(config, deps),
     orm,
     config,
     clock,

@@ -4,13 +4,12 @@
  * is full the request gets 503 with `Retry-After` instead of waiting without end; the event loop stays free
  * for every other request meanwhile.
  */
-import { AsyncLocalStorage } from 'node:async_hooks';
 import { availableParallelism } from 'node:os';
-import type { RequestHandler } from 'express';
 import { Piscina } from 'piscina';
 import type { CorpusOptions } from '../../shared/api/corpora';
 import { ErrorCode } from '../../shared/api/errors';
 import { HttpError } from '../http-error';
+import { ClientGoneError, currentRequestSignal } from '../middleware/client-gone';
 import type { AnalysedCorpus, CpuTask } from './cpu-tasks';
 import type { PasswordStrength } from '../modules/auth/password-strength-check';
 
@@ -57,34 +56,6 @@ export class ServerBusyError extends HttpError {
   }
 }
 
-/**
- * Work dropped because its client closed the connection before the answer (nobody reads this answer; the
- * status is the common "client closed request" one, so logs tell it from a fault).
- */
-export class ClientGoneError extends HttpError {
-  override name = 'ClientGoneError';
-  constructor() {
-    super(499, ErrorCode.ServerBusy, 'The connection closed before the answer; nothing was saved. Send the request again.');
-  }
-}
-
-/** The signal of the current request (aborts when its client goes away before the answer), if any. */
-export function currentRequestSignal(): AbortSignal | undefined {
-  return requestSignal.getStore();
-}
-
-/** The signal of the request being served: when its client goes away, its queued work is dropped. */
-const requestSignal = new AsyncLocalStorage<AbortSignal>();
-
-/** Express middleware: work queued for this request is cancelled if the connection closes before the answer. */
-export const cancelWorkOnClose: RequestHandler = (req, res, next) => {
-  const controller = new AbortController();
-  res.once('close', () => {
-    if (!res.writableFinished) controller.abort();
-  });
-  requestSignal.run(controller.signal, next);
-};
-
 interface Waiting {
   task: CpuTask;
   transfer?: ArrayBuffer[];
@@ -122,7 +93,7 @@ function pump(): void {
 function run<T>(task: CpuTask, transfer?: ArrayBuffer[]): Promise<T> {
   if (waiting.length >= settings.queueLimit) return Promise.reject(new ServerBusyError());
   return new Promise<T>((resolve, reject) => {
-    waiting.push({ task, transfer, signal: requestSignal.getStore(), resolve: resolve as (v: unknown) => void, reject });
+    waiting.push({ task, transfer, signal: currentRequestSignal(), resolve: resolve as (v: unknown) => void, reject });
     pump();
   });
 }

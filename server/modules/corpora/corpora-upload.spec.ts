@@ -4,7 +4,7 @@ import { ErrorCode } from '../../../shared/api/errors';
 import { splitOf } from '../../../shared/data/split';
 import { createBenchFixture, createTestApp, type BenchFixture, type TestApp } from '../../testing/test-app';
 import { corpusOptionsSchema } from '../../../shared/api/corpora';
-import { ClientGoneError } from '../../workers/cpu-pool';
+import { ClientGoneError } from '../../middleware/client-gone';
 import { Bench } from '../benches/bench.entity';
 import { corpusRowCounts, savedWords, upload } from './corpora-test-helpers';
 import { analyseUpload } from './corpus-import';

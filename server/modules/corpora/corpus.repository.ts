@@ -10,7 +10,7 @@ import { wordRows } from './corpus-import';
 import { CorpusWord } from './corpus-word.entity';
 import { Corpus } from './corpus.entity';
 import { caseInsensitiveGlob } from './word-search';
-import { ClientGoneError } from '../../workers/cpu-pool';
+import { ClientGoneError } from '../../middleware/client-gone';
 
 /**
  * Rows per INSERT statement (5 bound parameters each stays far below SQLite's parameter limit). Small
@@ -141,6 +141,17 @@ export class CorpusRepository {
       [...params, q.limit, q.offset],
     );
     return { items: items.map((r) => ({ word: r.word, count: Number(r.count), split: r.split, length: Number(r.length) })), total: Number(total[0]?.n ?? 0) };
+  }
+
+  /**
+   * Every word with its count and stored split, most frequent first (ties by word), as parallel arrays: the
+   * training set of a tab or a runner. The read connection: it never waits for another upload's write transaction.
+   */
+  async trainingWords(corpus: Corpus): Promise<{ words: string[]; counts: number[]; splits: SplitName[] }> {
+    const rows: { word: string; count: number; split: SplitName }[] = await this.em
+      .getConnection('read')
+      .execute('select word, `count`, split from corpus_words where corpus_id = ? order by `count` desc, word asc', [corpus.id]);
+    return { words: rows.map((r) => r.word), counts: rows.map((r) => Number(r.count)), splits: rows.map((r) => r.split) };
   }
 
   /** All words, most frequent first (ties by word), for the export. */

@@ -19,16 +19,7 @@ export function trainingSetRoutes(ctx: AppContext): Router {
     const id = String(req.params['corpusId'] ?? '');
     const corpus = UUID.test(id) ? await new CorpusRepository(ctx.orm.em).find(currentBench(req).bench, id) : null;
     if (!corpus) throw notFound('This corpus');
-    // The read connection: a tab starting a run does not wait for another upload's write transaction.
-    const rows: { word: string; count: number; split: TrainingSet['splits'][number] }[] = await ctx.orm.em
-      .getConnection('read')
-      .execute('select word, `count`, split from corpus_words where corpus_id = ? order by `count` desc, word asc', [corpus.id]);
-    const body: TrainingSet = {
-      alphabet: corpus.alphabet,
-      words: rows.map((r) => r.word),
-      counts: rows.map((r) => Number(r.count)),
-      splits: rows.map((r) => r.split),
-    };
+    const body: TrainingSet = { alphabet: corpus.alphabet, ...(await new CorpusRepository(ctx.orm.em).trainingWords(corpus)) };
     res.json(body);
   });
   return router;

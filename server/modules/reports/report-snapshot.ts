@@ -58,9 +58,8 @@ export async function buildSnapshot(em: EntityManager, bench: Bench, me: User, r
     for (const run of found) {
       runs.push(await repo.dto(run, me, role));
       // The run's latest evaluation (held-out cost with its standard error, cross entropy), as the compare page shows.
-      const newest = (await evaluationRepo.page(bench, { runId: run.id, limit: 1, offset: 0 })).items[0];
-      const full = newest ? await evaluationRepo.find(bench, newest.id) : null;
-      if (full) evaluations[run.id] = comparisonEvaluation(toEvaluationDto(full));
+      const latest = await evaluationRepo.latestOfRun(bench, run.id);
+      if (latest) evaluations[run.id] = comparisonEvaluation(toEvaluationDto(latest));
       const page = await metrics.read(run, { series: CURVE_SERIES, sinceStep: -1, limit: 50_000 });
       curves[run.id] = Object.fromEntries(Object.entries(page.series).map(([name, s]) => [name, thin(s.steps, s.values, MAX_CURVE_POINTS)]));
     }

@@ -7,10 +7,6 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { RUNNER_LEASE_SECONDS, type RunnerJob } from '../../../shared/api/runner-jobs';
 import type { RunDto } from '../../../shared/api/runs';
-import type { AppContext } from '../../app-context';
-import { createLogger } from '../../logging';
-import { AdminSetup } from '../auth/admin-setup';
-import { mailboxMailer } from '../mail/mailer';
 import { bearer, createBenchFixture, createTestApp, type BenchFixture, type TestApp } from '../../testing/test-app';
 import { uploadCorpus } from '../runs/runs-test-helpers';
 import { expireLeases } from './lease-expiry';
@@ -20,16 +16,11 @@ import { createRunnerRun, createRunnerToken, progressAt, runnerCall } from './ru
 let t: TestApp;
 let f: BenchFixture;
 let corpus: { id: string; alphabet: string[] };
-let ctx: AppContext;
 
 beforeAll(async () => {
   t = await createTestApp();
   f = await createBenchFixture(t);
   corpus = await uploadCorpus(t, f.benchId, f.tokens.member);
-  ctx = {
-    config: t.config, orm: t.orm, mailer: mailboxMailer(t.mailbox, t.config.mailFrom), mailbox: t.mailbox, clock: t.clock,
-    logger: createLogger('silent'), adminSetup: new AdminSetup(t.config), logError: (e) => { throw e; }, runQueue: t.runQueue, runEvents: t.runEvents,
-  };
 });
 afterAll(async () => {
   await t.close();
@@ -50,18 +41,18 @@ describe('an expired runner lease', () => {
       t.clock.advance(40_000);
       expect((await silent.heartbeat({ threads: 1, jobs: [{ runId: run.id, step: 60, stepsPerSecond: 2 }] })).status).toBe(200);
       t.clock.advance(40_000);
-      expect(await expireLeases(ctx)).toBe(0);
+      expect(await expireLeases(t.ctx)).toBe(0);
       expect(await getRun(run.id)).toMatchObject({ status: 'training', runner: { name: 'Silent box' } });
 
       // Then silence: one second past the lease, the run waits for a runner again.
       t.clock.advance((RUNNER_LEASE_SECONDS - 40 + 1) * 1000);
-      expect(await expireLeases(ctx)).toBe(1);
+      expect(await expireLeases(t.ctx)).toBe(1);
       const waiting = await getRun(run.id);
       expect(waiting).toMatchObject({ status: 'queued', runner: null, stepsDone: 40 });
       expect(waiting.statusReason).toMatch(/"Silent box" stopped answering.*waiting for a runner/);
       const published = events.filter((e): e is Extract<RunEvent, { name: 'run' }> => e.name === 'run' && e.runId === run.id);
       expect(published.at(-1)?.data).toMatchObject({ status: 'queued', runner: null });
-      expect(await expireLeases(ctx)).toBe(0);
+      expect(await expireLeases(t.ctx)).toBe(0);
     } finally {
       unsubscribe();
     }

@@ -6,8 +6,10 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ErrorCode } from '../../../shared/api/errors';
 import type { RunnerJob } from '../../../shared/api/runner-jobs';
+import type { TrainingSet } from '../../../shared/api/runs';
+import { splitOf } from '../../../shared/data/split';
 import { bearer, countAllRows, createBenchFixture, createTestApp, type BenchFixture, type TestApp } from '../../testing/test-app';
-import { ssmCheckpointBytes, uploadCorpus } from '../runs/runs-test-helpers';
+import { createRun, ssmCheckpointBytes, tinySsmModel, tinyTraining, uploadCorpus } from '../runs/runs-test-helpers';
 import { createRunnerRun, createRunnerToken, progressAt, runnerCall } from './runners-test-helpers';
 
 let t: TestApp;
@@ -109,5 +111,24 @@ describe('runner tokens', () => {
     const run = await request(t.app).get(`/api/benches/${f.benchId}/runs/${heldByA.runId}`).set(bearer(f.tokens.viewer));
     expect(run.body).toMatchObject({ status: 'queued', runner: null });
     expect(((await runnerCall(t, tokenA).claim()).body as RunnerJob).runId).toBe(heldByA.runId);
+  });
+});
+
+describe('the training set of a runner run', () => {
+  it("carries the corpus's words and counts, split by the run's own split when it has one", async () => {
+    const shares = { train: 0.5, validation: 0.3, test: 0.2 };
+    const run = await createRun(t, f.benchId, f.tokens.member, {
+      family: 'ssm', name: 'Own split', corpusId: corpus.id, placement: 'runners',
+      settings: { model: { ...tinySsmModel }, training: { ...tinyTraining }, split: { seed: 12345, shares } },
+    });
+    const r = runnerCall(t, (await createRunnerToken(t, f.tokens.admin, 'Split box')).token);
+    expect((await r.claim(run.id)).status).toBe(200);
+    const set = (await r.trainingSet(run.id)).body as TrainingSet;
+    const stored = (await request(t.app).get(`/api/benches/${f.benchId}/corpora/${corpus.id}/training-set`).set(bearer(f.tokens.viewer))).body as TrainingSet;
+    expect(set.words).toEqual(['abba', 'aa', 'baba', 'abc', 'acab', 'cab', 'bac', 'bb', 'cabba', 'cc']);
+    expect(stored.words).toEqual(set.words);
+    expect(set.counts).toEqual([5, 4, 3, 2, 2, 2, 1, 1, 1, 1]);
+    expect(set.splits).toEqual(set.words.map((w) => splitOf(w, 12345, shares)));
+    expect(set.splits).not.toEqual(stored.splits);
   });
 });

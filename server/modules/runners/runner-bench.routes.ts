@@ -9,6 +9,7 @@ import { runControlSchema, type RunnerAvailability } from '../../../shared/api/r
 import { roleAtLeast, type Role } from '../../../shared/api/types';
 import type { AppContext } from '../../app-context';
 import { requireRole } from '../../middleware/bench-access';
+import { leaveRequestLine } from '../../middleware/request-gate';
 import { parseBody } from '../../middleware/validate';
 import { currentBench, currentUser } from '../../request-state';
 import { loadRun, requireControl } from '../runs/run-access';
@@ -32,6 +33,7 @@ function streamEvents(ctx: AppContext, req: Request, res: Response, filter: { ru
   res.status(200);
   res.set({ 'Content-Type': 'text/event-stream; charset=utf-8', 'Cache-Control': 'no-store', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
   res.flushHeaders();
+  leaveRequestLine(res);
   const send = (event: RunEvent) => {
     if (filter.runId !== null && event.runId !== filter.runId) return;
     if (!filter.names.includes(event.name)) return;

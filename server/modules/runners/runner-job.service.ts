@@ -200,7 +200,7 @@ export class RunnerJobService {
       };
       run.leaseExpiresAt = leaseUntil(now);
       run.updatedAt = now;
-      // The runner's own row only when its last sign of life is older than a heartbeat interval (one write less per call).
+      // The runner's own row only when its last sign of life is older than half a heartbeat interval (one write less per call).
       if (!runner.lastHeartbeatAt || now.getTime() - runner.lastHeartbeatAt.getTime() >= RUNNER_HEARTBEAT_EVERY_SECONDS * 1000 / 2) runner.lastHeartbeatAt = now;
       await this.em.flush();
       this.ctx.runEvents.publish({ name: 'progress', benchId: run.bench.id, runId: run.id, data: run.live });
@@ -224,17 +224,43 @@ export class RunnerJobService {
   /** Gives every run a runner holds back to the queue (its token was revoked, or the server restarted its threads). */
   async releaseAll(runner: Runner): Promise<number> {
     const runs = await this.em.find(Run, { runner }, { populate: ['bench', 'runner'] });
-    for (const run of runs) {
-      await this.runs.locked(run, async () => {
-        if (run.runner?.id !== runner.id) return;
-        const before = run.status;
-        if (run.status === 'training' || run.status === 'queued') this.runs.applyStatus(run, { status: 'queued', actor: null });
-        run.runner = null;
-        run.leaseExpiresAt = null;
-        await this.em.flush();
-        await this.runs.afterChange(run, before);
-      });
-    }
+    for (const run of runs) await this.giveBack(run, () => run.runner?.id === runner.id);
     return runs.length;
+  }
+
+  /**
+   * Gives back every run left `training` under a lease that ran out (its runner stopped answering: killed,
+   * off the network, asleep), with a reason that says so; returns how many. One indexed query when none did.
+   */
+  async releaseExpired(): Promise<number> {
+    const now = this.ctx.clock.now();
+    const runs = await this.em.find(Run, { placement: 'runners', status: 'training', runner: { $ne: null }, leaseExpiresAt: { $lte: now } }, { populate: ['runner'] });
+    let released = 0;
+    for (const run of runs) {
+      // Decided again under the lock: a progress call may have renewed the lease meanwhile.
+      const stillExpired = () => run.status === 'training' && !!run.runner && !!run.leaseExpiresAt && run.leaseExpiresAt <= this.ctx.clock.now();
+      const reason = () =>
+        `The runner "${run.runner?.name ?? 'runner'}" stopped answering (no word since its lease ran out at ${run.leaseExpiresAt!.toISOString().slice(11, 19)} UTC); ` +
+        'waiting for a runner, which resumes from the latest checkpoint.';
+      if (await this.giveBack(run, stillExpired, reason)) released++;
+    }
+    return released;
+  }
+
+  /**
+   * Under the run's lock, if `stillHeld()`: a training or queued run goes back to `queued` (with `reason`), and
+   * any run loses its holder and lease; the change is queued and published. Whether it was given back.
+   */
+  private async giveBack(run: Run, stillHeld: () => boolean, reason?: () => string): Promise<boolean> {
+    return this.runs.locked(run, async () => {
+      if (!stillHeld()) return false;
+      const before = run.status;
+      if (run.status === 'training' || run.status === 'queued') this.runs.applyStatus(run, { status: 'queued', statusReason: reason?.(), actor: null });
+      run.runner = null;
+      run.leaseExpiresAt = null;
+      await this.em.flush();
+      await this.runs.afterChange(run, before);
+      return true;
+    });
   }
 }

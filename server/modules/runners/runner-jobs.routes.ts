@@ -18,7 +18,9 @@ import { MAX_METRIC_POINTS_PER_REQUEST, type TrainingSet } from '../../../shared
 import { splitOf } from '../../../shared/data/split';
 import type { AppContext } from '../../app-context';
 import { HttpError, notFound } from '../../http-error';
+import { routineRequests } from '../../logging';
 import { parseBody, parseQuery } from '../../middleware/validate';
+import { CorpusRepository } from '../corpora/corpus.repository';
 import { storeUploadedCheckpoint } from '../runs/checkpoint-store';
 import { checkpointBytes, rawCheckpointBody } from '../runs/checkpoint-upload';
 import { Checkpoint } from '../runs/checkpoint.entity';
@@ -29,6 +31,7 @@ import { RunHeldError, RunnerJobService } from './runner-job.service';
 
 export function runnerJobRoutes(ctx: AppContext): Router {
   const router = Router();
+  router.use(routineRequests);
   router.use(requireRunner(ctx));
   const jobs = () => new RunnerJobService(ctx);
 
@@ -57,17 +60,10 @@ export function runnerJobRoutes(ctx: AppContext): Router {
     const run = await jobs().held(currentRunner(req), String(req.params['runId']), true);
     const corpus = run.corpus;
     if (!corpus) throw notFound('The corpus of this run');
-    const rows: { word: string; count: number; split: TrainingSet['splits'][number] }[] = await ctx.orm.em
-      .getConnection()
-      .execute('select word, `count`, split from corpus_words where corpus_id = ? order by `count` desc, word asc', [corpus.id]);
+    const { words, counts, splits } = await new CorpusRepository(ctx.orm.em).trainingWords(corpus);
     const split = run.settings.split ?? corpusSplit(corpus);
     const own = JSON.stringify(split) === JSON.stringify(corpusSplit(corpus));
-    const body: TrainingSet = {
-      alphabet: run.alphabet,
-      words: rows.map((r) => r.word),
-      counts: rows.map((r) => Number(r.count)),
-      splits: rows.map((r) => (own ? r.split : splitOf(r.word, split.seed, split.shares))),
-    };
+    const body: TrainingSet = { alphabet: run.alphabet, words, counts, splits: own ? splits : words.map((w) => splitOf(w, split.seed, split.shares)) };
     res.json(body);
   });
 
