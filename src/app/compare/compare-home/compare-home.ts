@@ -8,6 +8,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { MatTableModule } from '@angular/material/table';
 import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import type { CorpusSummary } from '../../../../shared/api/corpora';
+import { BITS_PER_CHAR, figureKind } from '../../../../shared/api/figure-names';
 import { MAX_COMPARED_RUNS } from '../../../../shared/api/reports';
 import type { RunDto } from '../../../../shared/api/runs';
 import { CurrentBench } from '../../benches/current-bench';
@@ -23,8 +24,8 @@ import { ReportsApi } from '../../reports/reports-api';
 
 export const CURVE_CHOICES = [
   // One series holds every family's figure: a bound for the state-space model, exact for GRU and n-gram.
-  { series: 'train_bound', label: 'Training figure', unit: 'bits/char (end-of-word counted)' },
-  { series: 'valid_bound', label: 'Validation figure', unit: 'bits/char (end-of-word counted)' },
+  { series: 'train_bound', label: 'Training figure', unit: BITS_PER_CHAR },
+  { series: 'valid_bound', label: 'Validation figure', unit: BITS_PER_CHAR },
   { series: 'noise_mi', label: 'Mean noise mutual information', unit: 'bits' },
   { series: 'obs_entropy', label: 'Observation entropy', unit: 'bits' },
 ] as const;
@@ -50,6 +51,8 @@ export class CompareHome {
   private readonly dialog = inject(MatDialog);
   protected readonly bench = inject(CurrentBench);
   protected readonly curveChoices = CURVE_CHOICES;
+  protected readonly bitsPerChar = BITS_PER_CHAR;
+  protected readonly figureKind = figureKind;
   protected readonly pickColumns = ['pick', 'name', 'family', 'corpus', 'status', 'bestBound'];
 
   protected readonly corpora = signal<CorpusSummary[]>([]);
