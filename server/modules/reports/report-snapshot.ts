@@ -17,6 +17,7 @@ import {
 import type { Role } from '../../../shared/api/types';
 import { validationFailed } from '../../http-error';
 import type { Bench } from '../benches/bench.entity';
+import { Evaluation } from '../evaluations/evaluation.entity';
 import { EvaluationRepository, toEvaluationDto } from '../evaluations/evaluation.repository';
 import { GridRepository } from '../grids/grid.repository';
 import { verdictOfGrid } from '../grids/learnability';
@@ -36,6 +37,20 @@ function thin(steps: number[], values: number[], max: number): { steps: number[]
   return { steps: keep.map((i) => steps[i]!), values: keep.map((i) => values[i]!) };
 }
 
+/**
+ * Each run's latest evaluation (held-out cost with its standard error, cross entropy), as the compare page
+ * shows it: two queries whatever the number of runs (the newest per run, then only those with their results).
+ */
+async function latestEvaluations(em: EntityManager, bench: Bench, runs: Run[]): Promise<Record<string, ComparisonEvaluation>> {
+  if (runs.length === 0) return {};
+  const all = await em.find(Evaluation, { bench, run: { $in: runs } }, { orderBy: { createdAt: 'desc', id: 'asc' } });
+  const newest = new Map<string, string>();
+  for (const e of all) if (!newest.has(e.run.id)) newest.set(e.run.id, e.id);
+  if (newest.size === 0) return {};
+  const full = await em.find(Evaluation, { id: { $in: [...newest.values()] }, bench }, { populate: ['run', 'createdBy', 'checkpoint', 'results'] });
+  return Object.fromEntries(full.map((e) => [e.run.id, comparisonEvaluation(toEvaluationDto(e))]));
+}
+
 export async function buildSnapshot(em: EntityManager, bench: Bench, me: User, role: Role, kind: ReportKind, ids: string[]): Promise<ReportSnapshot> {
   if (kind === 'evaluation') {
     const found = await new EvaluationRepository(em).find(bench, ids[0]!);
@@ -53,14 +68,9 @@ export async function buildSnapshot(em: EntityManager, bench: Bench, me: User, r
     const metrics = new MetricRepository(em);
     const runs = [];
     const curves: ComparisonCurves = {};
-    const evaluations: Record<string, ComparisonEvaluation> = {};
-    const evaluationRepo = new EvaluationRepository(em);
+    const evaluations = await latestEvaluations(em, bench, found);
     for (const run of found) {
       runs.push(await repo.dto(run, me, role));
-      // The run's latest evaluation (held-out cost with its standard error, cross entropy), as the compare page shows.
-      const newest = (await evaluationRepo.page(bench, { runId: run.id, limit: 1, offset: 0 })).items[0];
-      const full = newest ? await evaluationRepo.find(bench, newest.id) : null;
-      if (full) evaluations[run.id] = comparisonEvaluation(toEvaluationDto(full));
       const page = await metrics.read(run, { series: CURVE_SERIES, sinceStep: -1, limit: 50_000 });
       curves[run.id] = Object.fromEntries(Object.entries(page.series).map(([name, s]) => [name, thin(s.steps, s.values, MAX_CURVE_POINTS)]));
     }
