@@ -64,6 +64,8 @@ export class CompareHome {
   protected readonly curveSeries = signal<(typeof CURVE_CHOICES)[number]['series']>('train_bound');
   protected readonly curves = signal<RunCurve[]>([]);
   protected readonly evaluations = signal<Record<string, EvaluationFigures | undefined>>({});
+  /** Runs whose latest evaluation was already asked for on this visit. */
+  private readonly evaluationsAsked = new Set<string>();
   protected readonly saving = signal(false);
 
   protected readonly visibleRuns = computed(() => this.runs().filter((r) => !this.corpusId() || r.corpus?.id === this.corpusId()));
@@ -88,9 +90,15 @@ export class CompareHome {
       const series = this.curveSeries();
       untracked(() => void this.loadCurves(runs, series));
     });
+    // Each run's latest evaluation is asked for once per visit: ticking one more run fetches only that run's.
     effect(() => {
       const runs = this.chosen();
-      untracked(() => void this.sources.evaluationFigures(this.benchId(), runs).then((e) => this.evaluations.set(e)));
+      untracked(() => {
+        const missing = runs.filter((r) => !this.evaluationsAsked.has(r.id));
+        if (missing.length === 0) return;
+        for (const r of missing) this.evaluationsAsked.add(r.id);
+        void this.sources.evaluationFigures(this.benchId(), missing).then((found) => this.evaluations.update((old) => ({ ...old, ...found })));
+      });
     });
   }
 
