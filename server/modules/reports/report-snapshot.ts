@@ -23,7 +23,7 @@ import { GridRepository } from '../grids/grid.repository';
 import { verdictOfGrid } from '../grids/learnability';
 import { MetricRepository } from '../runs/metric.repository';
 import { Run } from '../runs/run.entity';
-import { RunRepository } from '../runs/run.repository';
+import { canControlRun, RunRepository, toRunDto } from '../runs/run.repository';
 import type { User } from '../users/user.entity';
 
 const CURVE_SERIES = ['train_bound', 'valid_bound'];
@@ -64,13 +64,12 @@ export async function buildSnapshot(em: EntityManager, bench: Bench, me: User, r
     if (found.length !== unique.length) throw validationFailed({ sourceIds: 'Choose runs of this bench; at least one of these does not exist here.' });
     const order = new Map(unique.map((id, i) => [id, i]));
     found.sort((a, b) => order.get(a.id)! - order.get(b.id)!);
-    const repo = new RunRepository(em);
     const metrics = new MetricRepository(em);
-    const runs = [];
+    const checkpoints = await new RunRepository(em).checkpointCounts(found.map((r) => r.id));
+    const runs = found.map((run) => toRunDto(run, checkpoints.get(run.id) ?? 0, canControlRun(run, me, role)));
     const curves: ComparisonCurves = {};
     const evaluations = await latestEvaluations(em, bench, found);
     for (const run of found) {
-      runs.push(await repo.dto(run, me, role));
       const page = await metrics.read(run, { series: CURVE_SERIES, sinceStep: -1, limit: 50_000 });
       curves[run.id] = Object.fromEntries(Object.entries(page.series).map(([name, s]) => [name, thin(s.steps, s.values, MAX_CURVE_POINTS)]));
     }
