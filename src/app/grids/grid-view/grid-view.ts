@@ -7,7 +7,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { Router, RouterLink } from '@angular/router';
-import { unitText } from '../../../../shared/api/figure-names';
+import { unitNote, unitText } from '../../../../shared/api/figure-names';
 import { GRID_FIGURE_LABELS, GRID_FIGURES, gridAxisLabel, type GridDto, type GridFigure, type LearnabilityVerdict } from '../../../../shared/api/grids';
 import { MAX_COMPARED_RUNS } from '../../../../shared/api/reports';
 import { CurrentBench } from '../../benches/current-bench';
@@ -51,6 +51,7 @@ export class GridView {
   protected readonly figures = GRID_FIGURES;
   protected readonly figureLabels = GRID_FIGURE_LABELS;
   protected readonly unitText = unitText;
+  protected readonly unitNote = unitNote;
   protected readonly statusLabels = STATUS_LABELS;
 
   protected readonly grid = signal<GridDto | null>(null);
