@@ -36,3 +36,9 @@ export const NEUTRAL_NAMES = {
 
 /** The value of the "Figures are" row or column of a run. */
 export const figureKindText = (family: RunFamily): string => (isExactFamily(family) ? 'exact' : 'bounds (IWAE)');
+
+/** A unit as printed beside a figure: bits/char always says the end-of-word symbol is counted. */
+export const unitText = (unit: string): string => (unit === 'bits/char' ? BITS_PER_CHAR : unit);
+
+/** The same where the unit already stands in brackets (a row label, a caption): "bits/char, end-of-word counted". */
+export const unitNote = (unit: string): string => (unit === 'bits/char' ? 'bits/char, end-of-word counted' : unit);

@@ -7,9 +7,9 @@ import { describe, expect, it } from 'vitest';
 import { ssmResultsFixture } from '../../server/modules/evaluations/evaluation-test-fixture';
 import type { EvaluationDto, EvaluationResults } from './evaluations';
 import { BITS_PER_CHAR, BITS_PER_WORD } from './figure-names';
-import type { LearnabilityVerdict } from './grids';
 import { comparisonEvaluation, comparisonFigures, evaluationFigures, gridFigures, type ReportFigure } from './reports';
 import type { RunDto } from './runs';
+import { verdictFixture } from './verdict-test-fixture';
 
 function run(id: string, name: string, family: RunDto['family'], summary: RunDto['summary']): RunDto {
   return {
@@ -81,20 +81,12 @@ describe('report figure rows', () => {
   });
 
   it('name the best n-gram a reference, not a floor, in a learnability verdict', () => {
-    const verdict: LearnabilityVerdict = {
-      gridId: 'g', toleranceBits: 0.05, budgetSteps: 10, ngramFloor: { order: 3, bitsPerChar: 2.5 }, complete: true,
-      rows: [
-        { model: 'ngram-3', family: 'ngram', size: 3, runId: 'a', status: 'finished', bitsPerChar: 2.5, bitsPerWord: 13, gapToNgramFloor: 0 },
-        { model: 'gru-8', family: 'gru', size: 8, runId: 'b', status: 'finished', bitsPerChar: 2.25, bitsPerWord: 12, gapToNgramFloor: -0.25 },
-        { model: 'ssm-8', family: 'ssm', size: 8, runId: 'c', status: 'finished', bitsPerChar: 2.375, gapToNgramFloor: -0.125 },
-      ],
-      comparisons: [{ stateSize: 8, gruBitsPerChar: 2.25, ssmBitsPerChar: 2.375, difference: 0.125, onPar: false }],
-    };
+    const verdict = verdictFixture();
     const grid = { figure: 'bestValidationBitsPerChar', cells: [] } as unknown as Parameters<typeof gridFigures>[0];
     const rows = gridFigures(grid, verdict);
     expect(rows.filter((r) => /floor/.test(r.name))).toEqual([]);
     expect(rows.find((r) => r.setting === 'gru-8' && r.name === 'gap to the best n-gram')!.value).toBe(-0.25);
-    expect(rows.find((r) => r.setting === 'gru-8' && r.name === 'bits per word (exact)')!.value).toBe(12);
+    expect(rows.find((r) => r.setting === 'gru-8' && r.name === 'bits per word (exact)')!.value).toBe(12.5);
     expect(rows.find((r) => r.setting === 'ssm-8' && r.name === 'bits per char (bound)')!.value).toBe(2.375);
   });
 });

@@ -11,7 +11,7 @@ import { safeText } from './safe-text';
 import type { EvaluationDto } from './evaluations';
 import { GRID_FIGURE_LABELS, type GridDto, type LearnabilityVerdict } from './grids';
 import type { RunDto } from './runs';
-import { BITS_PER_CHAR, BITS_PER_WORD, figureKindText, isExactFamily, trainingFigureName, validationFigureName } from './figure-names';
+import { BITS_PER_CHAR, BITS_PER_WORD, figureKind, figureKindText, isExactFamily, trainingFigureName, unitText, validationFigureName } from './figure-names';
 
 export const REPORT_KINDS = ['evaluation', 'comparison', 'grid'] as const;
 export type ReportKind = (typeof REPORT_KINDS)[number];
@@ -225,14 +225,14 @@ export function comparisonFigures(runs: readonly RunDto[], evaluations: Record<s
 
 export function gridFigures(grid: GridDto, verdict?: LearnabilityVerdict): ReportFigure[] {
   const f = GRID_FIGURE_LABELS[grid.figure];
-  const unit = f.unit === 'bits/char' ? BITS_PER_CHAR : f.unit;
+  const unit = unitText(f.unit);
   const out = grid.cells.flatMap((c) => [
     ...row('cell', f.label, c.label, c.figure, unit),
     ...row('cell', 'status', c.label, c.run?.status ?? 'deleted', ''),
   ]);
   if (verdict) {
     for (const v of verdict.rows) {
-      const kind = isExactFamily(v.family) ? 'exact' : 'bound';
+      const kind = figureKind(v.family);
       out.push(...row('verdict', `bits per char (${kind})`, v.model, v.bitsPerChar, BITS_PER_CHAR));
       out.push(...row('verdict', `bits per word (${kind})`, v.model, v.bitsPerWord, BITS_PER_WORD));
       out.push(...row('verdict', 'gap to the best n-gram', v.model, v.gapToNgramFloor, BITS_PER_CHAR));

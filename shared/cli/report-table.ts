@@ -1,12 +1,11 @@
 /** The evaluation as a plain-text table (figure, value, unit), numbers right-aligned. */
+import { BITS_PER_CHAR as BPC } from '../api/figure-names';
 import type { EvaluationOutput } from './evaluate-run';
 import type { HeldOutFigures } from '../eval/baseline-figures';
 import type { BaselineFigures } from '../eval/evaluation-report';
 
 type Row = [string, string, string] | null;
 
-/** Bits per character always count the end-of-word symbol. */
-const BPC = 'bits/char (end-of-word counted)';
 const se = (x: number | null | undefined, digits: number) => (x === undefined ? null : `± ${f(x, digits)}`);
 
 /** Held-out rows of one model: bits/char and bits/word, each with its standard error when known. */

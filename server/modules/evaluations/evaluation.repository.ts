@@ -45,11 +45,6 @@ export class EvaluationRepository {
     return this.em.findOne(Evaluation, { id, bench, ...(checkpoint ? { checkpoint } : {}) }, { populate: [...populate, 'results'] });
   }
 
-  /** The run's newest evaluation with its results (the order of `page`), or null. */
-  latestOfRun(bench: Bench, runId: string): Promise<Evaluation | null> {
-    return this.em.findOne(Evaluation, { bench, run: runId }, { orderBy: { createdAt: 'desc', id: 'asc' }, populate: [...populate, 'results'] });
-  }
-
   findSame(checkpoint: Checkpoint, settings: StoredEvaluationSettings): Promise<Evaluation | null> {
     return this.em.findOne(Evaluation, { checkpoint, settingsKey: evaluationSettingsKey(settings) }, { populate: [...populate, 'results'] });
   }

@@ -17,12 +17,13 @@ import {
 import type { Role } from '../../../shared/api/types';
 import { validationFailed } from '../../http-error';
 import type { Bench } from '../benches/bench.entity';
+import { Evaluation } from '../evaluations/evaluation.entity';
 import { EvaluationRepository, toEvaluationDto } from '../evaluations/evaluation.repository';
 import { GridRepository } from '../grids/grid.repository';
 import { verdictOfGrid } from '../grids/learnability';
 import { MetricRepository } from '../runs/metric.repository';
 import { Run } from '../runs/run.entity';
-import { RunRepository } from '../runs/run.repository';
+import { canControlRun, RunRepository, toRunDto } from '../runs/run.repository';
 import type { User } from '../users/user.entity';
 
 const CURVE_SERIES = ['train_bound', 'valid_bound'];
@@ -34,6 +35,20 @@ function thin(steps: number[], values: number[], max: number): { steps: number[]
   const every = Math.ceil(steps.length / max);
   const keep = steps.map((_, i) => i).filter((i) => i % every === 0 || i === steps.length - 1);
   return { steps: keep.map((i) => steps[i]!), values: keep.map((i) => values[i]!) };
+}
+
+/**
+ * Each run's latest evaluation (held-out cost with its standard error, cross entropy), as the compare page
+ * shows it: two queries whatever the number of runs (the newest per run, then only those with their results).
+ */
+async function latestEvaluations(em: EntityManager, bench: Bench, runs: Run[]): Promise<Record<string, ComparisonEvaluation>> {
+  if (runs.length === 0) return {};
+  const all = await em.find(Evaluation, { bench, run: { $in: runs } }, { orderBy: { createdAt: 'desc', id: 'asc' } });
+  const newest = new Map<string, string>();
+  for (const e of all) if (!newest.has(e.run.id)) newest.set(e.run.id, e.id);
+  if (newest.size === 0) return {};
+  const full = await em.find(Evaluation, { id: { $in: [...newest.values()] }, bench }, { populate: ['run', 'createdBy', 'checkpoint', 'results'] });
+  return Object.fromEntries(full.map((e) => [e.run.id, comparisonEvaluation(toEvaluationDto(e))]));
 }
 
 export async function buildSnapshot(em: EntityManager, bench: Bench, me: User, role: Role, kind: ReportKind, ids: string[]): Promise<ReportSnapshot> {
@@ -49,17 +64,12 @@ export async function buildSnapshot(em: EntityManager, bench: Bench, me: User, r
     if (found.length !== unique.length) throw validationFailed({ sourceIds: 'Choose runs of this bench; at least one of these does not exist here.' });
     const order = new Map(unique.map((id, i) => [id, i]));
     found.sort((a, b) => order.get(a.id)! - order.get(b.id)!);
-    const repo = new RunRepository(em);
     const metrics = new MetricRepository(em);
-    const runs = [];
+    const checkpoints = await new RunRepository(em).checkpointCounts(found.map((r) => r.id));
+    const runs = found.map((run) => toRunDto(run, checkpoints.get(run.id) ?? 0, canControlRun(run, me, role)));
     const curves: ComparisonCurves = {};
-    const evaluations: Record<string, ComparisonEvaluation> = {};
-    const evaluationRepo = new EvaluationRepository(em);
+    const evaluations = await latestEvaluations(em, bench, found);
     for (const run of found) {
-      runs.push(await repo.dto(run, me, role));
-      // The run's latest evaluation (held-out cost with its standard error, cross entropy), as the compare page shows.
-      const latest = await evaluationRepo.latestOfRun(bench, run.id);
-      if (latest) evaluations[run.id] = comparisonEvaluation(toEvaluationDto(latest));
       const page = await metrics.read(run, { series: CURVE_SERIES, sinceStep: -1, limit: 50_000 });
       curves[run.id] = Object.fromEntries(Object.entries(page.series).map(([name, s]) => [name, thin(s.steps, s.values, MAX_CURVE_POINTS)]));
     }

@@ -71,7 +71,7 @@ function differs(values: (string | number | null)[]): boolean {
   return values.length > 1 && values.some((v) => v !== values[0]);
 }
 
-/** Settings first (in a fixed order), then the figures. */
+/** Adds one figure row (numbers, or a text such as "not evaluated"). */
 type FigureAdder = (key: string, label: string, unit: string, values: (number | string | null | undefined)[]) => void;
 
 /** Figures of the latest stored evaluation; a run without one says so instead of a bare dash. */
@@ -87,7 +87,10 @@ function evaluationRows(runs: RunDto[], evaluations: Record<string, EvaluationFi
     runs.map((r) => (r.family !== 'ssm' ? null : evaluations[r.id] ? evaluations[r.id]!.meanNoiseInformationBits : NOT_EVALUATED)));
 }
 
-/** The rows of the side-by-side table; without `evaluations` (older reports) the evaluation rows are left out. */
+/**
+ * The rows of the side-by-side table: settings first (in a fixed order), then the figures; without `evaluations`
+ * (older reports) the evaluation rows are left out.
+ */
 export function compareRows(runs: RunDto[], evaluations?: Record<string, EvaluationFigures | undefined>): CompareRow[] {
   const settings = runs.map(settingsOf);
   const rows: CompareRow[] = [];

@@ -31,7 +31,7 @@ export class LiveRun {
   readonly notice = signal<string | null>(null);
   readonly samples = signal<string[]>([]);
   /** The latest validation figures of this session (they come with some progress messages only). */
-  readonly lastValidation = signal<{ step: number; bitsPerChar: number; bitsPerWord: number; exact: boolean } | null>(null);
+  readonly lastValidation = signal<{ step: number; bitsPerChar: number; bitsPerWord: number } | null>(null);
   /** Step of the last checkpoint saved to the server in this session. */
   readonly lastSavedStep = signal<number | null>(null);
   readonly points = new Subject<CurvePoint[]>();

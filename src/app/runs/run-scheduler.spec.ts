@@ -242,7 +242,7 @@ describe('RunScheduler at the end of a run', () => {
     await until(() => live.state() === 'training');
     const p = { ...progressAt(40, 80), evaluation: { step: 40, validationBitsPerChar: 2.5, validationBitsPerWord: 15, observationEntropyBits: null, noiseInformationBits: null, samples: [] } };
     (worker.handle.api.start as unknown as { mock: { calls: [(x: TrainingProgress) => void][] } }).mock.calls[0]![0](p as TrainingProgress);
-    expect(live.lastValidation()).toEqual({ step: 40, bitsPerChar: 2.5, bitsPerWord: 15, exact: true }); // an n-gram run: exact
+    expect(live.lastValidation()).toEqual({ step: 40, bitsPerChar: 2.5, bitsPerWord: 15 });
     await scheduler.stop('run-1');
   });
 });

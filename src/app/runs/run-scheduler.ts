@@ -247,7 +247,7 @@ export class RunScheduler implements OnDestroy {
     if (p.evaluation && p.evaluation.samples.length > 0) live.samples.update((old) => [...p.evaluation!.samples, ...old].slice(0, 30));
     const e = p.evaluation;
     if (e && Number.isFinite(e.validationBitsPerChar)) {
-      live.lastValidation.set({ step: e.step, bitsPerChar: e.validationBitsPerChar, bitsPerWord: e.validationBitsPerWord, exact: live.run.family !== 'ssm' });
+      live.lastValidation.set({ step: e.step, bitsPerChar: e.validationBitsPerChar, bitsPerWord: e.validationBitsPerWord });
     }
     if (e && Number.isFinite(e.validationBitsPerChar) && (!slot.best || e.validationBitsPerChar < slot.best.bits)) {
       slot.best = { bits: e.validationBitsPerChar, step: e.step, bitsPerWord: e.validationBitsPerWord };

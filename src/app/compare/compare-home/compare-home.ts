@@ -8,6 +8,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { MatTableModule } from '@angular/material/table';
 import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import type { CorpusSummary } from '../../../../shared/api/corpora';
+import { BITS_PER_CHAR, figureKind } from '../../../../shared/api/figure-names';
 import { MAX_COMPARED_RUNS } from '../../../../shared/api/reports';
 import type { RunDto } from '../../../../shared/api/runs';
 import { CurrentBench } from '../../benches/current-bench';
@@ -23,8 +24,8 @@ import { ReportsApi } from '../../reports/reports-api';
 
 export const CURVE_CHOICES = [
   // One series holds every family's figure: a bound for the state-space model, exact for GRU and n-gram.
-  { series: 'train_bound', label: 'Training figure', unit: 'bits/char (end-of-word counted)' },
-  { series: 'valid_bound', label: 'Validation figure', unit: 'bits/char (end-of-word counted)' },
+  { series: 'train_bound', label: 'Training figure', unit: BITS_PER_CHAR },
+  { series: 'valid_bound', label: 'Validation figure', unit: BITS_PER_CHAR },
   { series: 'noise_mi', label: 'Mean noise mutual information', unit: 'bits' },
   { series: 'obs_entropy', label: 'Observation entropy', unit: 'bits' },
 ] as const;
@@ -50,6 +51,8 @@ export class CompareHome {
   private readonly dialog = inject(MatDialog);
   protected readonly bench = inject(CurrentBench);
   protected readonly curveChoices = CURVE_CHOICES;
+  protected readonly bitsPerChar = BITS_PER_CHAR;
+  protected readonly figureKind = figureKind;
   protected readonly pickColumns = ['pick', 'name', 'family', 'corpus', 'status', 'bestBound'];
 
   protected readonly corpora = signal<CorpusSummary[]>([]);
@@ -61,6 +64,8 @@ export class CompareHome {
   protected readonly curveSeries = signal<(typeof CURVE_CHOICES)[number]['series']>('train_bound');
   protected readonly curves = signal<RunCurve[]>([]);
   protected readonly evaluations = signal<Record<string, EvaluationFigures | undefined>>({});
+  /** Runs whose latest evaluation was already asked for on this visit. */
+  private readonly evaluationsAsked = new Set<string>();
   protected readonly saving = signal(false);
 
   protected readonly visibleRuns = computed(() => this.runs().filter((r) => !this.corpusId() || r.corpus?.id === this.corpusId()));
@@ -85,9 +90,15 @@ export class CompareHome {
       const series = this.curveSeries();
       untracked(() => void this.loadCurves(runs, series));
     });
+    // Each run's latest evaluation is asked for once per visit: ticking one more run fetches only that run's.
     effect(() => {
       const runs = this.chosen();
-      untracked(() => void this.sources.evaluationFigures(this.benchId(), runs).then((e) => this.evaluations.set(e)));
+      untracked(() => {
+        const missing = runs.filter((r) => !this.evaluationsAsked.has(r.id));
+        if (missing.length === 0) return;
+        for (const r of missing) this.evaluationsAsked.add(r.id);
+        void this.sources.evaluationFigures(this.benchId(), missing).then((found) => this.evaluations.update((old) => ({ ...old, ...found })));
+      });
     });
   }
 

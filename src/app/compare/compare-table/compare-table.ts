@@ -1,5 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { MatTableModule } from '@angular/material/table';
+import { unitNote } from '../../../../shared/api/figure-names';
 import type { RunDto } from '../../../../shared/api/runs';
 import { formatValue, type CompareRow } from '../compare-rows';
 
@@ -17,7 +18,7 @@ import { formatValue, type CompareRow } from '../compare-rows';
         <ng-container matColumnDef="label">
           <th mat-header-cell *matHeaderCellDef>Setting or figure</th>
           <td mat-cell *matCellDef="let row" [class.figure]="row.group === 'figure'">
-            {{ row.label }}@if (row.unit) {<span class="nw-unit">({{ row.unit === 'bits/char' ? 'bits/char, end-of-word counted' : row.unit }})</span>}
+            {{ row.label }}@if (row.unit) {<span class="nw-unit">({{ unitNote(row.unit) }})</span>}
             @if (row.differs) { <span class="differs-mark">differs</span> }
           </td>
         </ng-container>
@@ -47,6 +48,7 @@ import { formatValue, type CompareRow } from '../compare-rows';
 export class CompareTable {
   readonly runs = input.required<Pick<RunDto, 'id' | 'name'>[]>();
   readonly rows = input.required<CompareRow[]>();
+  protected readonly unitNote = unitNote;
   protected readonly columns = computed(() => ['label', ...this.runs().map((_, i) => `run${i}`)]);
   protected show(row: CompareRow, v: string | number | null): string { return formatValue(row, v); }
   protected isNumber(v: unknown): boolean { return typeof v === 'number'; }

@@ -1,11 +1,10 @@
 /** The headline figures of a stored evaluation as table rows (label, value, error bar, unit), bits everywhere. */
 import type { EvaluationResults } from '../../../../shared/api/evaluations';
+import { BITS_PER_CHAR as BPC } from '../../../../shared/api/figure-names';
 
 /** `spread`: the error bar; `spreadKind` says what it is (standard error, or the older spread over repeats). */
 export interface FigureRow { key: string; label: string; value: number; spread?: number; spreadKind?: 'se' | 'sd-repeats'; unit: string; digits: number; note?: string }
 
-/** Bits per character always count the end-of-word symbol. */
-const BPC = 'bits/char (end-of-word counted)';
 /** Error bar: the standard error (per-word spread and repeats) when stored, else the older spread over repeats. */
 const orNone = (x: number | null | undefined): number | undefined => (x === null || x === undefined ? undefined : x);
 function errorBar(se: number | null | undefined, olderSd?: number): Pick<FigureRow, 'spread' | 'spreadKind'> {

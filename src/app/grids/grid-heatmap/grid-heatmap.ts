@@ -1,6 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import type { EChartsCoreOption } from 'echarts/core';
 import { NgxEchartsDirective } from 'ngx-echarts';
+import { unitText } from '../../../../shared/api/figure-names';
 import { GRID_FIGURE_LABELS, type GridFigure } from '../../../../shared/api/grids';
 import { HEAT_RAMP, provideComparisonCharts } from '../../compare/comparison-charts';
 import { CHART_COLOURS as C, CHART_FONT, CHART_MONO } from '../../corpora/corpus-charts/chart-setup';
@@ -27,7 +28,7 @@ export class GridHeatmap {
   protected readonly options = computed<EChartsCoreOption>(() => {
     const d = this.data();
     const shortUnit = GRID_FIGURE_LABELS[this.figure()].unit;
-    const unit = shortUnit === 'bits/char' ? 'bits/char (end-of-word counted)' : shortUnit;
+    const unit = unitText(shortUnit);
     const scores = d.cells.map((c) => c.goodness);
     const lo = scores.length ? Math.min(...scores) : 0;
     const hi = scores.length ? Math.max(...scores) : 1;

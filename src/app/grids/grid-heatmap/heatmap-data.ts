@@ -2,6 +2,7 @@
  * The numbers behind a grid's heat map (pure functions): the chosen figure of every cell, averaged over the
  * axes that are not drawn (e.g. seeds), placed on a column axis and a row axis.
  */
+import { meanStandardError } from '../../../../shared/eval/standard-error';
 import { GRID_FIGURE_LABELS, gridValueLabel, type GridCellDto, type GridDto, type GridFigure } from '../../../../shared/api/grids';
 
 export function cellFigure(cell: GridCellDto, figure: GridFigure): number | null {
@@ -36,25 +37,25 @@ export interface HeatmapData {
 export function heatmapData(grid: Pick<GridDto, 'axes' | 'cells'>, figure: GridFigure, xAxis: number, yAxis: number | null, axisLabel: (key: string) => string): HeatmapData {
   const xa = grid.axes[xAxis]!;
   const ya = yAxis === null ? null : grid.axes[yAxis]!;
-  const sums = new Map<string, { sum: number; n: number; of: number; values: number[] }>();
+  const sums = new Map<string, { of: number; values: number[] }>();
   let filled = 0;
   for (const cell of grid.cells) {
     const x = cell.coords[xAxis] ?? 0;
     const y = yAxis === null ? 0 : cell.coords[yAxis] ?? 0;
     const key = `${x},${y}`;
-    const acc = sums.get(key) ?? { sum: 0, n: 0, of: 0, values: [] };
+    const acc = sums.get(key) ?? { of: 0, values: [] };
     acc.of += 1;
     const v = cellFigure(cell, figure);
-    if (v !== null) { acc.sum += v; acc.n += 1; acc.values.push(v); filled += 1; }
+    if (v !== null) { acc.values.push(v); filled += 1; }
     sums.set(key, acc);
   }
   const cells: HeatCell[] = [];
   for (const [key, acc] of sums) {
-    if (acc.n === 0) continue;
+    const n = acc.values.length;
+    if (n === 0) continue;
     const [x, y] = key.split(',').map(Number) as [number, number];
-    const value = acc.sum / acc.n;
-    const se = acc.n < 2 ? null : Math.sqrt(acc.values.reduce((a, v) => a + (v - value) ** 2, 0) / (acc.n - 1) / acc.n);
-    cells.push({ x, y, value, goodness: goodness(value, figure), runs: acc.n, of: acc.of, se });
+    const value = acc.values.reduce((a, v) => a + v, 0) / n;
+    cells.push({ x, y, value, goodness: goodness(value, figure), runs: n, of: acc.of, se: meanStandardError(acc.values) });
   }
   return {
     columns: xa.values.map(gridValueLabel),

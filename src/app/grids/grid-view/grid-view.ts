@@ -7,6 +7,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { Router, RouterLink } from '@angular/router';
+import { unitNote, unitText } from '../../../../shared/api/figure-names';
 import { GRID_FIGURE_LABELS, GRID_FIGURES, gridAxisLabel, type GridDto, type GridFigure, type LearnabilityVerdict } from '../../../../shared/api/grids';
 import { MAX_COMPARED_RUNS } from '../../../../shared/api/reports';
 import { CurrentBench } from '../../benches/current-bench';
@@ -49,6 +50,8 @@ export class GridView {
   protected readonly bench = inject(CurrentBench);
   protected readonly figures = GRID_FIGURES;
   protected readonly figureLabels = GRID_FIGURE_LABELS;
+  protected readonly unitText = unitText;
+  protected readonly unitNote = unitNote;
   protected readonly statusLabels = STATUS_LABELS;
 
   protected readonly grid = signal<GridDto | null>(null);

@@ -1,5 +1,6 @@
 import { DecimalPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, input } from '@angular/core';
+import { BITS_PER_CHAR, figureKind } from '../../../../shared/api/figure-names';
 import type { LearnabilityVerdict } from '../../../../shared/api/grids';
 import { STATUS_LABELS } from '../../runs/run-labels';
 
@@ -12,7 +13,7 @@ import { STATUS_LABELS } from '../../runs/run-labels';
     <div class="nw-card">
       <p class="lead">
         @if (verdict().ngramFloor; as f) {
-          Best n-gram: order {{ f.order }} reaches <span class="nw-num" data-testid="best-ngram">{{ f.bitsPerChar | number: '1.3-3' }}</span><span class="nw-unit">bits/char (end-of-word counted), exact</span>
+          Best n-gram: order {{ f.order }} reaches <span class="nw-num" data-testid="best-ngram">{{ f.bitsPerChar | number: '1.3-3' }}</span><span class="nw-unit">{{ bitsPerChar }}, exact</span>
           (a reference to beat, not a limit: a model with a state can go below it).
         } @else { The best n-gram is known once the n-gram runs have finished. }
         Every model trained for {{ verdict().budgetSteps | number }} steps. @if (!verdict().complete) { <strong>Still training: figures fill in as runs end.</strong> }
@@ -25,7 +26,7 @@ import { STATUS_LABELS } from '../../runs/run-labels';
               <tr>
                 <td>{{ r.model }}</td>
                 <td>{{ r.status ? statusLabels[r.status] : '(deleted)' }}</td>
-                <td data-testid="verdict-kind">{{ r.family === 'ssm' ? 'bound' : 'exact' }}</td>
+                <td data-testid="verdict-kind">{{ figureKind(r.family) }}</td>
                 <td class="nw-num">@if (r.bitsPerChar !== null) { {{ r.bitsPerChar | number: '1.3-3' }}<span class="nw-unit">bits/char</span> } @else { — }</td>
                 <td class="nw-num">@if (r.bitsPerWord != null) { {{ r.bitsPerWord | number: '1.2-2' }}<span class="nw-unit">bits/word</span> } @else { — }</td>
                 <td class="nw-num">@if (r.gapToNgramFloor !== null) { {{ r.gapToNgramFloor >= 0 ? '+' : '' }}{{ r.gapToNgramFloor | number: '1.3-3' }}<span class="nw-unit">bits/char</span> } @else { — }</td>
@@ -69,4 +70,6 @@ import { STATUS_LABELS } from '../../runs/run-labels';
 export class LearnabilityVerdictTable {
   readonly verdict = input.required<LearnabilityVerdict>();
   protected readonly statusLabels = STATUS_LABELS;
+  protected readonly bitsPerChar = BITS_PER_CHAR;
+  protected readonly figureKind = figureKind;
 }

@@ -1,4 +1,4 @@
-import { trainingFigureName } from '../../../../shared/api/figure-names';
+import { isExactFamily, trainingFigureName } from '../../../../shared/api/figure-names';
 import { DecimalPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, input, output } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
@@ -89,10 +89,10 @@ export class RunnerProgress {
   });
   protected readonly percent = computed(() => (this.steps() > 0 ? Math.min(100, (100 * this.step()) / this.steps()) : 0));
   protected readonly figureLabel = computed(() => {
-    // A GRU's or n-gram's figure is exact, never a bound (shared/api/figure-names.ts).
-    if (this.run().family !== 'ssm') return trainingFigureName(this.run().family);
+    // A GRU's or n-gram's figure is exact, never a bound; an SSM's is named once its progress says which it is.
+    const family = this.run().family;
     const b = this.progress()?.isBound;
-    return b === true ? 'Training bound' : b === false ? 'Training figure (warm-up, not a bound yet)' : 'Training figure';
+    return isExactFamily(family) || typeof b === 'boolean' ? trainingFigureName(family, b ?? true) : 'Training figure';
   });
   protected readonly connectionLabel = computed(() => ({
     open: 'live (server-sent events)',

@@ -3,6 +3,7 @@ import { ChangeDetectionStrategy, Component, input, output } from '@angular/core
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
+import { BITS_PER_CHAR } from '../../../../shared/api/figure-names';
 import type { CheckpointDto } from '../../../../shared/api/runs';
 
 const REASONS: Record<CheckpointDto['reason'], string> = { auto: 'autosave', stop: 'on stop', manual: 'saved by hand', import: 'imported' };
@@ -32,7 +33,7 @@ const REASONS: Record<CheckpointDto['reason'], string> = { auto: 'autosave', sto
             <tr>
               <td class="nw-num">{{ c.step | number }}</td>
               <td class="nw-num">
-                @if (c.boundBitsPerChar !== null) { {{ c.boundBitsPerChar | number: '1.3-3' }}<span class="nw-unit">bits/char (end-of-word counted)</span> } @else { — }
+                @if (c.boundBitsPerChar !== null) { {{ c.boundBitsPerChar | number: '1.3-3' }}<span class="nw-unit">{{ bitsPerChar }}</span> } @else { — }
               </td>
               <td>{{ reasonOf(c) }}</td>
               <td class="nw-num">{{ c.byteSize / 1024 | number: '1.0-0' }}<span class="nw-unit">KiB</span></td>
@@ -68,6 +69,7 @@ export class RunCheckpoints {
   /** The run's family: the SSM's figure is a bound, the GRU's and n-gram's exact. */
   readonly family = input<'ssm' | 'gru' | 'ngram'>('ssm');
   readonly canResume = input(false);
+  protected readonly bitsPerChar = BITS_PER_CHAR;
   readonly resumeFrom = output<CheckpointDto>();
   readonly download = output<CheckpointDto>();
   protected reasonOf(c: CheckpointDto): string { return REASONS[c.reason]; }

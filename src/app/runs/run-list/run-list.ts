@@ -10,6 +10,7 @@ import { MatSortModule, type Sort } from '@angular/material/sort';
 import { MatTableModule } from '@angular/material/table';
 import { RouterLink } from '@angular/router';
 import type { CorpusSummary } from '../../../../shared/api/corpora';
+import { BITS_PER_CHAR, figureKind } from '../../../../shared/api/figure-names';
 import { RUN_FAMILIES, RUN_SORT_FIELDS, RUN_STATUSES, type RunDto, type RunFamily, type RunStatus } from '../../../../shared/api/runs';
 import { messageOf } from '../../core/api-error';
 import { roleAtLeast } from '../../core/api-types';
@@ -42,6 +43,8 @@ export class RunList {
   private readonly liveEvents = inject(LiveEvents);
 
   protected readonly families = RUN_FAMILIES;
+  protected readonly bitsPerChar = BITS_PER_CHAR;
+  protected readonly figureKind = figureKind;
   protected readonly statuses = RUN_STATUSES;
   protected readonly familyShort = FAMILY_SHORT;
   protected readonly statusLabels = STATUS_LABELS;

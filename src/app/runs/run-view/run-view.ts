@@ -5,6 +5,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
 import type { Subscription } from 'rxjs';
+import { figureKind, trainingFigureName } from '../../../../shared/api/figure-names';
 import type { RunControlAction } from '../../../../shared/api/runners';
 import { KNOWN_METRIC_SERIES, type CheckpointDto, type MetricSeriesPage, type RunDto } from '../../../../shared/api/runs';
 import { messageOf } from '../../core/api-error';
@@ -52,6 +53,8 @@ export class RunView {
   /** What the last "Save checkpoint now" did (a plain line beside the button: no overlay to build mid-training). */
   protected readonly saveNote = signal<{ ok: boolean; text: string } | null>(null);
   protected readonly familyLabels = FAMILY_LABELS;
+  protected readonly figureKind = figureKind;
+  protected readonly trainingFigureName = trainingFigureName;
   protected readonly validationNote = `Validation figures while training score a hash-random subset of at most ${LIVE_VALIDATION_WORDS} ` +
     'held-out words (the same for every run of the corpus); bits/char count the end-of-word symbol. An evaluation scores more.';
   protected readonly statusLabels = STATUS_LABELS;
