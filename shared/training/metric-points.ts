@@ -18,7 +18,7 @@ export interface CurvePoint { series: string; step: number; value: number }
 /** The points a progress report adds to the curves (non-finite values are left out). */
 export function metricPointsOf(p: TrainingProgress): CurvePoint[] {
   const out: CurvePoint[] = [];
-  if (p.totalSteps > 0) out.push({ series: SERIES.train, step: p.step, value: p.trainBitsPerChar });
+  if (p.totalSteps > 0 && p.trainBitsPerChar !== null) out.push({ series: SERIES.train, step: p.step, value: p.trainBitsPerChar });
   if (p.totalSteps > 0 && p.wordsPerSecond > 0) out.push({ series: SERIES.speed, step: p.step, value: p.wordsPerSecond });
   const e = p.evaluation;
   if (e) {

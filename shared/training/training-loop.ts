@@ -55,16 +55,21 @@ export function nextCheckpointStep(step: number, every: number | undefined): num
 export async function runTrainingLoop(engine: RunEngine, settings: TrainerSettings, hooks: TrainingLoopHooks): Promise<LoopOutcome> {
   const now = hooks.now ?? (() => performance.now());
   const save = async (reason: CheckpointReason) => { if (hooks.saveCheckpoint) await hooks.saveCheckpoint(reason, engine); };
-  if (engine.closedForm) {
+  if (engine.closedForm || engine.stepCount >= settings.steps) {
+    // A closed-form model has no steps; a run resumed from the checkpoint of its last step (the page closed between
+    // that save and the end) has none left. Both still report their validation figures, which the resumed run may
+    // never have sent.
+    const step = engine.closedForm ? 0 : engine.stepCount;
     let evaluation;
     try {
       evaluation = engine.evaluate();
     } catch (e) {
-      return { kind: 'failed', step: 0, error: toTrainerError(e) };
+      return { kind: 'failed', step, error: toTrainerError(e) };
     }
-    await hooks.onProgress?.({ step: 0, totalSteps: 0, wordsPerSecond: 0, etaSeconds: 0, trainBitsPerChar: 0, isBound: true, evaluation });
+    const totalSteps = engine.closedForm ? 0 : settings.steps;
+    await hooks.onProgress?.({ step, totalSteps, wordsPerSecond: 0, etaSeconds: 0, trainBitsPerChar: null, isBound: true, evaluation });
     await save('end');
-    return { kind: 'completed', step: 0 };
+    return { kind: 'completed', step };
   }
   const yieldEvery = hooks.yieldEveryMs ?? 25;
   const yieldToEvents = hooks.yieldToEvents ?? defaultYield;

@@ -85,8 +85,11 @@ export interface TrainingProgress {
   wordsPerSecond: number;
   /** Seconds left at the current speed (null before the speed is known). */
   etaSeconds: number | null;
-  /** Minus the mean training bound of the steps since the previous message, bits per character (a cost: lower is better). */
-  trainBitsPerChar: number;
+  /**
+   * Minus the mean training bound of the steps since the previous message, bits per character (a cost: lower is
+   * better); null when no step was taken (a closed-form model, or a run resumed from the checkpoint of its last step).
+   */
+  trainBitsPerChar: number | null;
   /** False while warm-up < 1: the training figure is then not a bound. */
   isBound: boolean;
   /** Present on the steps where the validation figures were measured. */

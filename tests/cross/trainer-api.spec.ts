@@ -135,6 +135,24 @@ describe('TrainerApi over a MessageChannel', () => {
     expect(await more.start(proxy(() => {}))).toEqual({ kind: 'completed', step: 15 });
   });
 
+  it('resumed from the checkpoint of its last step, reports the validation figures once and no training figure', async () => {
+    // The page can close between the final save and the run's last progress message; the resumed run has no step
+    // left, yet its validation figure must still reach the server (else a grid's heat map keeps an empty square).
+    const a = connect();
+    await a.init({ ...SMALL, steps: 12, evalEvery: 0 }, set);
+    await a.start(proxy(() => {}));
+    const bytes = await a.checkpoint();
+    const b = connect();
+    await b.init({ ...SMALL, steps: 12, evalEvery: 0 }, set, bytes);
+    const seen: TrainingProgress[] = [];
+    expect(await b.start(proxy((p: TrainingProgress) => { seen.push(p); }))).toEqual({ kind: 'completed', step: 12 });
+    expect(seen).toHaveLength(1);
+    expect(seen[0]!.step).toBe(12);
+    expect(seen[0]!.trainBitsPerChar).toBeNull();
+    expect(seen[0]!.evaluation!.step).toBe(12);
+    expect(seen[0]!.evaluation!.validationBitsPerChar).toBeGreaterThan(0);
+  });
+
   it('refuses bad checkpoint bytes with a plain { name, message } error that says what to do', async () => {
     const api = connect();
     const err = await api.init(SMALL, set, new TextEncoder().encode('not a checkpoint')).catch((e: unknown) => e);
@@ -161,6 +179,7 @@ describe('TrainerApi over a MessageChannel', () => {
     await api.init({ ...SMALL, family: 'ngram', order: 3 }, set);
     const seen: TrainingProgress[] = [];
     expect(await api.start(proxy((p: TrainingProgress) => { seen.push(p); }))).toEqual({ kind: 'completed', step: 0 });
+    expect(seen[0]!.trainBitsPerChar).toBeNull(); // no training steps: no training figure to store
     const e = seen[0]!.evaluation!;
     expect(e.validationBitsPerChar).toBeLessThan(log2V); // closed form: uniform costs log2 V bits per character
     expect(e.observationEntropyBits).toBeNull();

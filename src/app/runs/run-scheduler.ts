@@ -279,7 +279,7 @@ export class RunScheduler implements OnDestroy {
   private async saveCheckpoint(slot: Slot, reason: 'auto' | 'stop' | 'manual'): Promise<void> {
     if (!slot.handle) return;
     const p = slot.live.progress();
-    const bound = p?.evaluation?.validationBitsPerChar ?? p?.trainBitsPerChar;
+    const bound = p?.evaluation?.validationBitsPerChar ?? p?.trainBitsPerChar ?? undefined;
     const url = this.api.checkpointUploadUrl(slot.live.benchId, slot.live.id, reason, bound);
     const ck = await slot.handle.api.uploadCheckpoint({ url, token: this.auth.token() });
     slot.live.lastSavedStep.set(ck.step);
@@ -323,7 +323,9 @@ export class RunScheduler implements OnDestroy {
         answer = await this.api.update(live.benchId, live.id, {
           ...extra, stepsDone: p.step,
           summary: {
-            lastBoundBitsPerChar: p.trainBitsPerChar, lastIsBound: p.isBound, wordsPerSecond: Math.max(0, p.wordsPerSecond),
+            // No training figure when no step was taken (closed form, or resumed at the last step): keep the stored one.
+            ...(p.trainBitsPerChar !== null
+              ? { lastBoundBitsPerChar: p.trainBitsPerChar, lastIsBound: p.isBound, wordsPerSecond: Math.max(0, p.wordsPerSecond) } : {}),
             ...(slot.best ? { bestValidationBitsPerChar: slot.best.bits, bestValidationStep: slot.best.step } : {}),
             ...(slot.best && Number.isFinite(slot.best.bitsPerWord) ? { bestValidationBitsPerWord: slot.best.bitsPerWord } : {}),
             ...(live.samples().length > 0 ? { lastSamples: live.samples().slice(0, LAST_SAMPLES_KEPT).map((w) => w.slice(0, 64)) } : {}),

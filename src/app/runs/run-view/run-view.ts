@@ -101,7 +101,7 @@ export class RunView {
   /** The training figure: live, or the last one stored. */
   protected readonly trainBound = computed(() => {
     const p = this.progress();
-    if (p) return { bits: p.trainBitsPerChar, isBound: p.isBound };
+    if (p && p.trainBitsPerChar !== null) return { bits: p.trainBitsPerChar, isBound: p.isBound };
     const s = this.run()?.summary;
     return s?.lastBoundBitsPerChar != null ? { bits: s.lastBoundBitsPerChar, isBound: s.lastIsBound ?? true } : null;
   });
