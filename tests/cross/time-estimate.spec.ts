@@ -41,38 +41,44 @@ describe('time estimate', () => {
     expect([evaluationCount(40, 20), evaluationCount(45, 20), evaluationCount(45, 0), evaluationCount(0, 20)]).toEqual([2, 3, 1, 0]);
   });
 
-  it('a probe on this computer predicts a short real run within a factor of 1.5', { timeout: 60_000 }, async () => {
+  it('a probe on this computer predicts a short real run within a factor of 1.5', { timeout: 90_000 }, async () => {
     const set = demoSet();
     const lengths = lengthWeightsOf(corpusStats(set.train).lengthHistogram, DESIGN.regime);
     const wordLength = Math.round(expectedLongestWord(lengths, DESIGN.batchSize));
     const validationWordLength = Math.round(meanLength(lengths));
     const report = async () => ({ backend, simd: false, threads: 1 });
+    // Three rounds of probe-then-run, compared by the median ratio: a run of a few hundred milliseconds on a
+    // machine shared with other test files is easily slowed by a burst of their work, which one round cannot tell
+    // from a wrong estimate.
+    const ratios: number[] = [];
+    for (let round = 0; round < 3; round++) {
+      const prober = new TrainerSession(report);
+      const probe = await prober.probe({ settings: DESIGN, alphabetSize: set.alphabet.length, wordLength, validationWordLength });
+      await prober.dispose();
+      expect(probe.backend).toBe(backend);
+      expect(probe.timedSteps).toBeGreaterThanOrEqual(2);
+      expect(probe.secondsPerStep).toBeGreaterThan(0);
+      // The probe ran first, so this process is warm when the run starts: the one-off set-up of a fresh worker
+      // (which the estimate adds for the page) is left out here.
+      const { totalSeconds, setupSeconds } = estimateFromProbe(probe, DESIGN);
+      const estimate = totalSeconds - setupSeconds;
 
-    const prober = new TrainerSession(report);
-    const probe = await prober.probe({ settings: DESIGN, alphabetSize: set.alphabet.length, wordLength, validationWordLength });
-    await prober.dispose();
-    expect(probe.backend).toBe(backend);
-    expect(probe.timedSteps).toBeGreaterThanOrEqual(2);
-    expect(probe.secondsPerStep).toBeGreaterThan(0);
-    // The probe ran first, so this process is warm when the run starts: the one-off set-up of a fresh worker
-    // (which the estimate adds for the page) is left out here.
-    const { totalSeconds, setupSeconds } = estimateFromProbe(probe, DESIGN);
-    const estimate = totalSeconds - setupSeconds;
-
-    const session = new TrainerSession(report);
-    await session.init(DESIGN, set);
-    const t0 = performance.now();
-    const outcome = await session.start(proxy(() => {}));
-    const measured = (performance.now() - t0) / 1000;
-    await session.dispose();
-    expect(outcome).toEqual({ kind: 'completed', step: DESIGN.steps });
-    const ratio = estimate / measured;
-    process.stderr.write(`time estimate: probe ${probe.secondsPerStep.toFixed(3)} s/step + ${probe.secondsPerEvaluation.toFixed(3)} s/measurement, ` +
-      `set-up ${setupSeconds.toFixed(2)} s, probe ${probe.probeSeconds.toFixed(1)} s ` +
-      `(words of ${wordLength}) → ${estimate.toFixed(2)} s; measured run ${measured.toFixed(2)} s; ratio ${ratio.toFixed(2)}\n`);
+      const session = new TrainerSession(report);
+      await session.init(DESIGN, set);
+      const t0 = performance.now();
+      const outcome = await session.start(proxy(() => {}));
+      const measured = (performance.now() - t0) / 1000;
+      await session.dispose();
+      expect(outcome).toEqual({ kind: 'completed', step: DESIGN.steps });
+      ratios.push(estimate / measured);
+      process.stderr.write(`time estimate, round ${round + 1}: probe ${probe.secondsPerStep.toFixed(3)} s/step + ` +
+        `${probe.secondsPerEvaluation.toFixed(3)} s/measurement, set-up ${setupSeconds.toFixed(2)} s, probe ${probe.probeSeconds.toFixed(1)} s ` +
+        `(words of ${wordLength}) → ${estimate.toFixed(2)} s; measured run ${measured.toFixed(2)} s; ratio ${(estimate / measured).toFixed(2)}\n`);
+    }
+    const median = [...ratios].sort((x, y) => x - y)[1]!;
     // Target of the estimate: within a factor of 1.5 of the real run (product requirement, no source).
-    expect(ratio).toBeGreaterThan(1 / 1.5);
-    expect(ratio).toBeLessThan(1.5);
+    expect(median).toBeGreaterThan(1 / 1.5);
+    expect(median).toBeLessThan(1.5);
   });
 
   it('refuses a probe with an impossible word length and says what to fix', async () => {
