@@ -6,6 +6,8 @@ import { SERIES } from '../live-run';
 import { alignSeries } from './align-series';
 import { curveLines } from './curve-lines';
 
+/** Steps are whole numbers: ticks every 1, 2, 5, 10, 20, 50, … steps (uPlot's default also offers 0.5, 0.25, …). */
+const STEP_TICKS = Array.from({ length: 8 }, (_, k) => [1, 2, 5].map((m) => m * 10 ** k)).flat();
 /** Live points are drawn at most this often; a redraw costs about a millisecond of main-thread time. */
 const RENDER_EVERY_MS = 1000;
 const HEIGHT = 300;
@@ -140,7 +142,7 @@ export class RunCurves {
       cursor: { drag: { x: false, y: false } },
       legend: { live: true },
       axes: [
-        { ...axis('step', 'x'), grid: { show: false } },
+        { ...axis('step', 'x'), grid: { show: false }, incrs: STEP_TICKS },
         axis('bits/char (end-of-word counted)', 'bits'),
         axis('bits', 'info', 1),
       ],
