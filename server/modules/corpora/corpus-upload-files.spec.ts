@@ -1,7 +1,8 @@
 // An upload streams to a temporary file that is always removed — after a save, a preview, every refusal, a
 // server fault and a client that leaves mid-upload — and a client that leaves while its corpus is analysed
 // stops the analysis in the worker thread and stores nothing.
-import { existsSync, readdirSync, statSync } from 'node:fs';
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, rmSync, statSync, utimesSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { request as httpRequest, type ClientRequest } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
@@ -11,7 +12,7 @@ import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { createBenchFixture, createTestApp, type BenchFixture, type TestApp } from '../../testing/test-app';
 import { cpuPool } from '../../workers/cpu-pool';
 import { corpusRowCounts, upload } from './corpora-test-helpers';
-import { UPLOAD_DIR_PREFIX } from './corpus-upload';
+import { STALE_UPLOAD_MS, UPLOAD_DIR_PREFIX, removeStaleUploads } from './corpus-upload';
 
 let t: TestApp;
 let f: BenchFixture;
@@ -165,4 +166,24 @@ describe('a client that leaves during the analysis', () => {
     expect(next.status).toBe(201);
     expect(cpuPool.stats().completed).toBe(start.completed + 1);
   }, 60_000);
+});
+
+describe('upload directories left by a killed server', () => {
+  it('are removed at start when older than an hour; fresh ones (another server may be reading them) and other folders stay', async () => {
+    const root = mkdtempSync(join(tmpdir(), 'noisewright-stale-spec-'));
+    try {
+      const now = Date.now();
+      for (const [name, ageMs] of [[`${UPLOAD_DIR_PREFIX}old`, STALE_UPLOAD_MS + 60_000], [`${UPLOAD_DIR_PREFIX}fresh`, 60_000], ['someone-else', STALE_UPLOAD_MS * 5]] as const) {
+        mkdirSync(join(root, name));
+        writeFileSync(join(root, name, 'upload'), 'alba\n');
+        const at = (now - ageMs) / 1000;
+        utimesSync(join(root, name), at, at);
+      }
+      expect(await removeStaleUploads(root, now)).toBe(1);
+      expect(readdirSync(root).sort()).toEqual([`${UPLOAD_DIR_PREFIX}fresh`, 'someone-else']);
+      expect(await removeStaleUploads(join(root, 'missing'), now)).toBe(0);
+    } finally {
+      rmSync(root, { recursive: true, force: true });
+    }
+  });
 });

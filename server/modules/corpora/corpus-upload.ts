@@ -6,7 +6,7 @@
  * server fault (with the answer at the latest). Errors become 413 (too large) or 422 (what to fix).
  */
 import type { Request, Response } from 'express';
-import { mkdir, mkdtemp, rm } from 'node:fs/promises';
+import { mkdir, mkdtemp, readdir, rm, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import multer from 'multer';
 import { corpusOptionsSchema, type CorpusOptions } from '../../../shared/api/corpora';
@@ -28,6 +28,28 @@ export interface CorpusUpload {
    * The file is not there afterwards.
    */
   whileStored<T>(work: (path: string) => Promise<T>): Promise<T>;
+}
+
+/** An upload directory this old is left over from a server that was killed mid-upload. */
+export const STALE_UPLOAD_MS = 60 * 60 * 1000;
+
+/**
+ * Removes upload directories left behind by a server that was killed (SIGKILL, power loss) while it read an
+ * upload; at start. Only directories older than STALE_UPLOAD_MS: another server may share the folder.
+ * Returns how many were removed.
+ */
+export async function removeStaleUploads(tempRoot: string, now = Date.now()): Promise<number> {
+  const names = await readdir(tempRoot).catch(() => [] as string[]);
+  let removed = 0;
+  for (const name of names.filter((n) => n.startsWith(UPLOAD_DIR_PREFIX))) {
+    const path = join(tempRoot, name);
+    const info = await stat(path).catch(() => null);
+    if (info?.isDirectory() && now - info.mtimeMs > STALE_UPLOAD_MS) {
+      await rm(path, { recursive: true, force: true });
+      removed++;
+    }
+  }
+  return removed;
 }
 
 function megabytes(bytes: number): string {
