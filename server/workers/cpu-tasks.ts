@@ -20,7 +20,7 @@ export type CpuTask =
   | { kind: 'strength'; password: string; userInputs: string[] };
 
 /** Where an upload's bytes are: a file (read as a stream) or, for small inputs and tests, memory. */
-export type UploadSource = { path: string } | { bytes: Uint8Array };
+export type UploadSource = { path: string; size: number } | { bytes: Uint8Array };
 
 /** Bytes read from an upload's file at a time. */
 const READ_CHUNK_BYTES = 64 * 1024;

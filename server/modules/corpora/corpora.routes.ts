@@ -51,7 +51,7 @@ export function corporaRoutes(ctx: AppContext): Router {
 
   router.post('/preview', requireRole('member'), async (req, res) => {
     const upload = await readUpload(req, res);
-    const analysed = await upload.whileStored((path) => cpuPool.analyse({ path }, upload.fileName, upload.options, false));
+    const analysed = await upload.whileStored((path) => cpuPool.analyse({ path, size: upload.size }, upload.fileName, upload.options, false));
     res.json(analysed.preview);
   });
 
@@ -61,7 +61,7 @@ export function corporaRoutes(ctx: AppContext): Router {
     // the event loop stays free, and the file is removed as soon as it is read.
     const [fields, analysed] = await upload.whileStored(async (path) => {
       const fields = parseBody(saveCorpusFieldsSchema, { name: upload.fields['name'], description: upload.fields['description'] ?? '' });
-      return [fields, await cpuPool.analyse({ path }, upload.fileName, upload.options, true)] as const;
+      return [fields, await cpuPool.analyse({ path, size: upload.size }, upload.fileName, upload.options, true)] as const;
     });
     const preview = analysed.preview;
     if (!preview.ok) {
