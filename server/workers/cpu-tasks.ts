@@ -1,8 +1,8 @@
 /**
  * The CPU-heavy tasks that must not run on the server's event loop: bcrypt hashing and checking, and corpus
  * parsing + analysis. They run in worker threads (cpu-pool.ts); this module is what each thread loads.
- * An upload is read from its temporary file as a stream and parsed line by line as the chunks arrive (the
- * whole file is never held in memory, neither here nor on the main thread).
+ * An upload is read from its temporary file as a stream and parsed line by line as the chunks arrive: the
+ * file's bytes are never held whole, neither here nor on the main thread (only its parsed records are).
  * Answers are compact: a corpus comes back as a summary plus its words joined by line feeds (a word never
  * holds one), so the main thread copies one string, not 150,000 objects.
  */
