@@ -47,6 +47,7 @@ export async function startChildServer(env: Record<string, string>, opts: { dir?
       SMTP_PORT: '0',
       MAIL_CAPTURE_FILE: 'none',
       STATIC_DIR: join(dir, 'no-client'),
+      UPLOAD_TEMP_DIR: join(dir, 'uploads'),
       LOG_LEVEL: 'warn',
       ...env,
     },

@@ -3,7 +3,7 @@
  * `loadConfig(process.env)` in main.ts; tests build their own with `loadConfig({ ... })`.
  */
 import { randomBytes } from 'node:crypto';
-import { availableParallelism } from 'node:os';
+import { availableParallelism, tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { z } from 'zod';
 
@@ -32,6 +32,8 @@ export interface Config {
   demoEmail: string;
   demoPassword: string;
   maxUploadBytes: number;
+  /** Where an upload is written while it is read (one directory per request, removed after the answer). */
+  uploadTempDir: string;
   /** Largest checkpoint file accepted (upload and import); larger ones get 413. */
   maxCheckpointBytes: number;
   jsonBodyLimitBytes: number;
@@ -127,6 +129,7 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     SEED_DEMO: bool(!production),
     DEMO_PASSWORD: str(DEFAULT_DEMO_PASSWORD),
     MAX_UPLOAD_BYTES: int(5 * 1024 * 1024, 1024, 1024 * 1024 * 1024),
+    UPLOAD_TEMP_DIR: str(''),
     MAX_CHECKPOINT_BYTES: int(20 * 1024 * 1024, 1024, 1024 * 1024 * 1024),
     JSON_BODY_LIMIT_BYTES: int(2 * 1024 * 1024, 1024, 1024 * 1024 * 1024),
     AUTH_RATE_LIMIT: int(20, 1, 1_000_000),
@@ -194,6 +197,7 @@ export function loadConfig(env: Record<string, string | undefined>): Config {
     demoEmail: 'demo@noisewright.local',
     demoPassword: e.DEMO_PASSWORD,
     maxUploadBytes: e.MAX_UPLOAD_BYTES,
+    uploadTempDir: e.UPLOAD_TEMP_DIR || tmpdir(),
     maxCheckpointBytes: e.MAX_CHECKPOINT_BYTES,
     jsonBodyLimitBytes: e.JSON_BODY_LIMIT_BYTES,
     authRateLimit: { max: e.AUTH_RATE_LIMIT, windowMs: e.AUTH_RATE_WINDOW_MS },

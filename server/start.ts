@@ -21,6 +21,7 @@ import { seedDemoIfEmpty } from './seeders/demo-seed';
 import { createLogger } from './logging';
 import { cpuPool } from './workers/cpu-pool';
 import { AdminSetup } from './modules/auth/admin-setup';
+import { removeStaleUploads } from './modules/corpora/corpus-upload';
 import { UserRepository } from './modules/users/user.repository';
 
 export interface RunningServer {
@@ -54,6 +55,7 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
   try {
     const logger = createLogger(config.logLevel);
     cleanups.push(() => cpuPool.close());
+    await removeStaleUploads(config.uploadTempDir);
     const orm = await openDatabase(config.databasePath, { debugSql: config.debugSql, logger: (message) => logger.debug({ sql: message }, 'sql') });
     cleanups.push(() => orm.close(true));
     const seeded = config.seedDemo ? await seedDemoIfEmpty(orm, config, clock) : false;

@@ -58,6 +58,7 @@ export function testConfig(dir: string, env: Record<string, string> = {}): Confi
     AUTH_RATE_LIMIT: '10000',
     PUBLIC_URL: 'http://workbench.test',
     STATIC_DIR: join(dir, 'no-client-build'),
+    UPLOAD_TEMP_DIR: join(dir, 'uploads'),
     LOG_LEVEL: 'silent',
     ...env,
   });

@@ -25,7 +25,7 @@ describe('cpu pool', () => {
     const options = corpusOptionsSchema.parse({});
     const bytes = new TextEncoder().encode(text);
     const here = wordRows(analyseUpload(bytes, 'w.tsv', options));
-    const there = savableFromPool('w.tsv', await cpuPool.analyse(new TextEncoder().encode(text), 'w.tsv', options, true));
+    const there = savableFromPool('w.tsv', await cpuPool.analyse({ bytes: new TextEncoder().encode(text) }, 'w.tsv', options, true));
     expect(there.rows).toEqual(here);
     expect(there.parsed.alphabet.chars.length).toBeGreaterThan(0);
   });

@@ -1,6 +1,8 @@
 /**
  * Parses an uploaded corpus file into words with counts, a precise per-line problem report, the
- * normalised alphabet and statistics. Pure: bytes in, plain data out (no Node, no DOM).
+ * normalised alphabet and statistics. Pure: bytes in, plain data out (no Node, no DOM). The bytes can be fed
+ * in chunks (`CorpusParser`: the server streams an upload from disk, line by line) or in one block
+ * (`parseCorpus`); the result, messages and line numbers are the same.
  *
  * Formats:
  * - `.txt`: one word per line, count 1 each.
@@ -15,8 +17,8 @@
  */
 import { type Alphabet, type WordCount, buildAlphabet, charsOf } from './encode';
 import { type Problem, type ProblemCode, ProblemList, describeChar, plural, quote } from './corpus-problems';
-import { decodeUpload } from './decode-upload';
-import { type CorpusFormat, type RawRecord, readRecords } from './corpus-records';
+import { UploadLineDecoder } from './decode-upload';
+import { type CorpusFormat, type RawRecord, type RecordsRead, RecordReader } from './corpus-records';
 import { type CorpusStats, corpusStats } from './corpus-stats';
 import {
   DEFAULT_NORMALISE_OPTIONS,
@@ -124,30 +126,81 @@ function resolveDuplicates(records: RawRecord[], merge: boolean, problems: Probl
   return out;
 }
 
-/** Parses uploaded bytes; never throws for bad content (only for invalid options). */
-export function parseCorpus(bytes: Uint8Array, opts: ParseOptions = {}): ParsedCorpus {
-  const problems = new ProblemList(opts.maxProblems ?? 200);
-  const normalise = opts.normalise ?? DEFAULT_NORMALISE_OPTIONS;
-  createNormaliser(normalise); // throws on invalid options before any work
-  const maxWordLength = opts.maxWordLength ?? DEFAULT_MAX_WORD_LENGTH;
-  const maxLineBytes = opts.maxLineBytes ?? DEFAULT_MAX_LINE_BYTES;
-  if (!Number.isInteger(maxWordLength) || maxWordLength < 1) throw new Error('The maximum word length must be a whole number of at least 1.');
-  if (!Number.isInteger(maxLineBytes) || maxLineBytes < 1) throw new Error('The maximum line length must be a whole number of at least 1.');
+/**
+ * A parse fed in chunks: `push` each chunk of the file in order, then `finish`. Lines are checked as soon as
+ * they are complete, so only the records (word, count, line) are kept, never the whole file. Throws only for
+ * invalid options (in the constructor); bad content is reported in the result.
+ */
+export class CorpusParser {
+  private readonly problems: ProblemList;
+  /** Problems of the bytes and of the lines, collected apart and joined in `finish` (see ProblemList.append). */
+  private readonly byteProblems: ProblemList;
+  private readonly lineProblems: ProblemList;
+  private readonly format: CorpusFormat | null;
+  private readonly decoder: UploadLineDecoder | null = null;
+  private readonly reader: RecordReader | null = null;
 
-  const format = opts.format ?? (opts.fileName ? formatFromFileName(opts.fileName) : null);
-  if (!format) {
-    const name = opts.fileName ? quote(opts.fileName) : 'The file';
-    problems.error(null, 'unknown-format', `${name} is not a .txt, .tsv or .csv file; rename it with one of these extensions or choose the format.`);
-    return emptyResult(problems, null, 0);
+  constructor(private readonly opts: ParseOptions = {}) {
+    const limit = opts.maxProblems ?? 200;
+    this.problems = new ProblemList(limit);
+    this.byteProblems = new ProblemList(limit);
+    this.lineProblems = new ProblemList(limit);
+    createNormaliser(opts.normalise ?? DEFAULT_NORMALISE_OPTIONS); // throws on invalid options before any work
+    const maxWordLength = opts.maxWordLength ?? DEFAULT_MAX_WORD_LENGTH;
+    const maxLineBytes = opts.maxLineBytes ?? DEFAULT_MAX_LINE_BYTES;
+    if (!Number.isInteger(maxWordLength) || maxWordLength < 1) throw new Error('The maximum word length must be a whole number of at least 1.');
+    if (!Number.isInteger(maxLineBytes) || maxLineBytes < 1) throw new Error('The maximum line length must be a whole number of at least 1.');
+    this.format = opts.format ?? (opts.fileName ? formatFromFileName(opts.fileName) : null);
+    if (this.format) {
+      const reader = new RecordReader({ format: this.format, maxLineBytes }, this.lineProblems);
+      this.reader = reader;
+      this.decoder = new UploadLineDecoder(this.byteProblems, (text, bytes, line) => reader.line(text, bytes, line));
+    }
   }
-  const decoded = decodeUpload(bytes, problems);
-  if (!decoded) return emptyResult(problems, format, 0);
-  const lineCount = decoded.lines.length;
-  const read = readRecords(decoded.lines, decoded.lineBytes, { format, maxLineBytes }, problems);
+
+  /** Reads the next chunk of the file (a file of an unknown format is not read). */
+  push(chunk: Uint8Array): void {
+    this.decoder?.push(chunk);
+  }
+
+  /** Ends the file and returns the parse. */
+  finish(): ParsedCorpus {
+    const { opts, problems, format, decoder, reader } = this;
+    if (!format || !decoder || !reader) {
+      const name = opts.fileName ? quote(opts.fileName) : 'The file';
+      problems.error(null, 'unknown-format', `${name} is not a .txt, .tsv or .csv file; rename it with one of these extensions or choose the format.`);
+      return emptyResult(problems, null, 0);
+    }
+    decoder.end();
+    problems.append(this.byteProblems);
+    problems.append(this.lineProblems);
+    if (decoder.failed) return emptyResult(problems, format, 0);
+    return finishParse(reader.result(), decoder.unreadableLines, decoder.lineCount, format, opts, problems);
+  }
+}
+
+/** Parses uploaded bytes in one block; never throws for bad content (only for invalid options). */
+export function parseCorpus(bytes: Uint8Array, opts: ParseOptions = {}): ParsedCorpus {
+  const parser = new CorpusParser(opts);
+  parser.push(bytes);
+  return parser.finish();
+}
+
+/** The checks of the whole file once every line is read: blank lines, duplicates, normalisation, statistics. */
+function finishParse(
+  read: RecordsRead,
+  unreadableLines: number[],
+  lineCount: number,
+  format: CorpusFormat,
+  opts: ParseOptions,
+  problems: ProblemList,
+): ParsedCorpus {
+  const normalise = opts.normalise ?? DEFAULT_NORMALISE_OPTIONS;
+  const maxWordLength = opts.maxWordLength ?? DEFAULT_MAX_WORD_LENGTH;
   if (read.trimmedLines.length > 0) {
     problems.warning(read.trimmedLines[0] ?? null, 'trailing-blanks', `${plural(read.trimmedLines.length, 'line', 'lines')} had spaces or tabs at the start or end of a field; they were removed (${lineList(read.trimmedLines)}).`);
   }
-  const unreadable = new Set(decoded.unreadableLines);
+  const unreadable = new Set(unreadableLines);
   const blankLines = read.blankLines.filter((l) => !unreadable.has(l));
   if (blankLines.length > 0 && blankLines.length < lineCount) {
     problems.warning(blankLines[0] ?? null, 'blank-lines', `${plural(blankLines.length, 'blank line was', 'blank lines were')} skipped (${lineList(blankLines)}).`);

@@ -80,6 +80,20 @@ export class ProblemList {
     return this.errorTotal;
   }
 
+  /**
+   * Adds another list's problems after this one's, as if they had been added here in that order (a streamed
+   * parse collects the problems of the bytes and those of the lines apart, and joins them in the order a
+   * parse of the whole file adds them).
+   */
+  append(other: ProblemList): void {
+    const offset = this.total;
+    for (const { p, i } of other.errors) if (this.errors.length < this.limit) this.errors.push({ p, i: i + offset });
+    for (const { p, i } of other.warnings) if (this.warnings.length < this.limit) this.warnings.push({ p, i: i + offset });
+    for (const [code, n] of Object.entries(other.counts) as [ProblemCode, number][]) this.counts[code] = (this.counts[code] ?? 0) + n;
+    this.total += other.total;
+    this.errorTotal += other.errorTotal;
+  }
+
   /** The listed problems, sorted by line (file-wide problems first), plus a closing note when capped. */
   list(): Problem[] {
     const chosen = [...this.errors, ...this.warnings.slice(0, Math.max(0, this.limit - this.errors.length))];

@@ -120,36 +120,41 @@ function looksLikeHeader(fields: string[]): boolean {
   return !INTEGER.test(count) && !NEGATIVE_INTEGER.test(count) && (WORD_HEADERS.test(word) || COUNT_HEADERS.test(count));
 }
 
-function pickDelimiter(format: CorpusFormat, lines: string[]): string | null {
+/** The delimiter of a format; a .csv file's first non-blank line with ";" and no "," switches it to ";". */
+function pickDelimiter(format: CorpusFormat, firstLine: string): string | null {
   if (format === 'txt') return null;
   if (format === 'tsv') return '\t';
-  const first = lines.find((l) => l.trim() !== '') ?? '';
-  return !first.includes(',') && first.includes(';') ? ';' : ',';
+  return !firstLine.includes(',') && firstLine.includes(';') ? ';' : ',';
 }
 
-/** Splits lines into records. Blank lines and trailing blanks are counted in `blank`/`trimmed`. */
-export function readRecords(
-  lines: string[],
-  lineBytes: number[],
-  opts: RecordOptions,
-  problems: ProblemList,
-): RecordsResult & { blankLines: number[]; trimmedLines: number[] } {
-  const delimiter = pickDelimiter(opts.format, lines);
-  const records: RawRecord[] = [];
-  const blankLines: number[] = [];
-  const trimmedLines: number[] = [];
-  let header: string[] | null = null;
-  let columns = 0;
-  let seenData = false;
-  lines.forEach((text, i) => {
-    const line = i + 1;
-    if ((lineBytes[i] ?? 0) > opts.maxLineBytes) {
-      problems.error(line, 'line-too-long', `Line ${line} is ${lineBytes[i]} bytes long (limit ${opts.maxLineBytes}); a line holds one word and its count — check for a missing line break.`);
-      seenData = true;
+export type RecordsRead = RecordsResult & { blankLines: number[]; trimmedLines: number[] };
+
+/**
+ * Splits lines into records as they come (`line` once per line, in order, then `result`). Blank lines and
+ * trailing blanks are counted in `blankLines`/`trimmedLines`.
+ */
+export class RecordReader {
+  private readonly records: RawRecord[] = [];
+  private readonly blankLines: number[] = [];
+  private readonly trimmedLines: number[] = [];
+  private header: string[] | null = null;
+  private columns = 0;
+  private seenData = false;
+  private delimiter: string | null | undefined = undefined;
+
+  constructor(private readonly opts: RecordOptions, private readonly problems: ProblemList) {}
+
+  line(text: string, bytes: number, line: number): void {
+    const { opts, problems } = this;
+    if (this.delimiter === undefined && (opts.format !== 'csv' || text.trim() !== '')) this.delimiter = pickDelimiter(opts.format, text);
+    const delimiter = this.delimiter ?? null;
+    if (bytes > opts.maxLineBytes) {
+      problems.error(line, 'line-too-long', `Line ${line} is ${bytes} bytes long (limit ${opts.maxLineBytes}); a line holds one word and its count — check for a missing line break.`);
+      this.seenData = true;
       return;
     }
     if (text.trim() === '') {
-      blankLines.push(line);
+      this.blankLines.push(line);
       return;
     }
     // Blanks at the ends of the line (a trailing tab too) and around fields are trimmed with a warning.
@@ -166,7 +171,7 @@ export function readRecords(
           ? `opens a quote that is not closed on the same line; close the quote (words cannot contain line breaks)`
           : `has a double quote outside a quoted field; put the whole field in quotes and write an inner quote as ""`;
         problems.error(line, r.code, `Line ${line} ${what}.`);
-        seenData = true;
+        this.seenData = true;
         return;
       }
       fields = r.fields;
@@ -174,22 +179,22 @@ export function readRecords(
       fields = core.split(delimiter);
     }
     const trimmed = fields.map((f) => (EDGE_BLANK.test(f) ? f.replace(/^[ \t\u00a0]+|[ \t\u00a0]+$/g, '') : f));
-    if (core !== text || trimmed.some((f, k) => f !== fields[k])) trimmedLines.push(line);
-    if (!seenData && delimiter !== null && looksLikeHeader(trimmed)) {
-      header = trimmed;
-      seenData = true;
+    if (core !== text || trimmed.some((f, k) => f !== fields[k])) this.trimmedLines.push(line);
+    if (!this.seenData && delimiter !== null && looksLikeHeader(trimmed)) {
+      this.header = trimmed;
+      this.seenData = true;
       return;
     }
-    seenData = true;
+    this.seenData = true;
     if (delimiter === null) {
       if (text.includes('\t')) {
         problems.error(line, 'wrong-column-count', `Line ${line} contains a tab; a .txt file holds one word per line — upload the file as .tsv if the second column is a count.`);
         return;
       }
     } else {
-      if (columns === 0) columns = trimmed.length === 1 ? 1 : 2;
-      if (trimmed.length !== columns) {
-        const want = columns === 2 ? '2 columns (word, count)' : '1 column (word), like the lines before it';
+      if (this.columns === 0) this.columns = trimmed.length === 1 ? 1 : 2;
+      if (trimmed.length !== this.columns) {
+        const want = this.columns === 2 ? '2 columns (word, count)' : '1 column (word), like the lines before it';
         const sep = delimiter === '\t' ? 'tab' : `"${delimiter}"`;
         const has = trimmed.length === 1 ? `1 column (no ${sep})` : `${trimmed.length} columns separated by ${sep}`;
         problems.error(line, 'wrong-column-count', `Line ${line} has ${has}; it needs ${want}.`);
@@ -198,12 +203,30 @@ export function readRecords(
     }
     const word = trimmed[0] ?? '';
     if (!checkWord(word, line, problems)) return;
-    if (columns === 2) {
+    if (this.columns === 2) {
       const count = parseCount(trimmed[1] ?? '', line, word, problems);
-      if (count !== null) records.push({ line, word, count });
+      if (count !== null) this.records.push({ line, word, count });
     } else {
-      records.push({ line, word, count: 1 });
+      this.records.push({ line, word, count: 1 });
     }
-  });
-  return { records, header, delimiter, columns: delimiter === null ? 1 : columns, blankLines, trimmedLines };
+  }
+
+  result(): RecordsRead {
+    const delimiter = this.delimiter === undefined ? pickDelimiter(this.opts.format, '') : this.delimiter;
+    return {
+      records: this.records,
+      header: this.header,
+      delimiter,
+      columns: delimiter === null ? 1 : this.columns,
+      blankLines: this.blankLines,
+      trimmedLines: this.trimmedLines,
+    };
+  }
+}
+
+/** Splits whole lines into records (see `RecordReader`). */
+export function readRecords(lines: string[], lineBytes: number[], opts: RecordOptions, problems: ProblemList): RecordsRead {
+  const reader = new RecordReader(opts, problems);
+  lines.forEach((text, i) => reader.line(text, lineBytes[i] ?? 0, i + 1));
+  return reader.result();
 }

@@ -24,7 +24,7 @@ const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 export function corporaRoutes(ctx: AppContext): Router {
   const router = Router({ mergeParams: true });
-  const readUpload = uploadReader(ctx.config.maxUploadBytes);
+  const readUpload = uploadReader(ctx.config.maxUploadBytes, ctx.config.uploadTempDir);
   const repo = () => new CorpusRepository(ctx.orm.em);
 
   async function loadCorpus(req: Request) {
@@ -51,14 +51,18 @@ export function corporaRoutes(ctx: AppContext): Router {
 
   router.post('/preview', requireRole('member'), async (req, res) => {
     const upload = await readUpload(req, res);
-    res.json((await cpuPool.analyse(upload.bytes, upload.fileName, upload.options, false)).preview);
+    const analysed = await upload.whileStored((path) => cpuPool.analyse({ path, size: upload.size }, upload.fileName, upload.options, false));
+    res.json(analysed.preview);
   });
 
   router.post('/', requireRole('member'), async (req, res) => {
     const upload = await readUpload(req, res);
-    const fields = parseBody(saveCorpusFieldsSchema, { name: upload.fields['name'], description: upload.fields['description'] ?? '' });
-    // Parsing and analysis run in a worker thread (server/workers/cpu-pool.ts); the event loop stays free.
-    const analysed = await cpuPool.analyse(upload.bytes, upload.fileName, upload.options, true);
+    // Parsing and analysis run in a worker thread that reads the stored file as a stream (server/workers/cpu-pool.ts);
+    // the event loop stays free, and the file is removed as soon as it is read.
+    const [fields, analysed] = await upload.whileStored(async (path) => {
+      const fields = parseBody(saveCorpusFieldsSchema, { name: upload.fields['name'], description: upload.fields['description'] ?? '' });
+      return [fields, await cpuPool.analyse({ path, size: upload.size }, upload.fileName, upload.options, true)] as const;
+    });
     const preview = analysed.preview;
     if (!preview.ok) {
       const first = preview.problems.find((p) => p.severity === 'error');

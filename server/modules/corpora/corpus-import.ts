@@ -4,7 +4,7 @@
  * normalisation, statistics) and the shared deterministic split (shared/data/split.ts).
  */
 import { PREVIEW_WORDS, type CorpusOptions, type CorpusPreview } from '../../../shared/api/corpora';
-import { parseCorpus, type ParsedCorpus } from '../../../shared/data/corpus-parse';
+import { parseCorpus, type ParseOptions, type ParsedCorpus } from '../../../shared/data/corpus-parse';
 import { SPLIT_NAMES, splitCorpus, type SplitCount, type SplitName, type SplitShares } from '../../../shared/data/split';
 import { charsOf, type WordCount } from '../../../shared/data/encode';
 
@@ -21,9 +21,9 @@ export function sharesOf(options: CorpusOptions): SplitShares {
   return { train: options.split.train, validation: options.split.validation, test: options.split.test };
 }
 
-/** Parses and splits an upload. Never throws for bad file content: problems are in `parsed.problems`. */
-export function analyseUpload(bytes: Uint8Array, fileName: string, options: CorpusOptions): AnalysedUpload {
-  const parsed = parseCorpus(bytes, {
+/** The shared parser's options for an upload's options. */
+export function parseOptionsOf(fileName: string, options: CorpusOptions): ParseOptions {
+  return {
     fileName,
     format: options.format,
     mergeDuplicates: options.mergeDuplicates,
@@ -35,10 +35,19 @@ export function analyseUpload(bytes: Uint8Array, fileName: string, options: Corp
       allowedChars: options.normalise.allowedChars || undefined,
       outsideAlphabet: options.normalise.outsideAlphabet,
     },
-  });
+  };
+}
+
+/** Splits a parsed upload (the parse may have been fed in chunks, see `CorpusParser`). */
+export function analyseParsed(parsed: ParsedCorpus, fileName: string, options: CorpusOptions): AnalysedUpload {
   const shares = sharesOf(options);
   const { counts, parts } = splitCorpus(parsed.words, options.split.seed, shares);
   return { fileName, options, parsed, shares, splitCounts: counts, splitParts: parts };
+}
+
+/** Parses and splits an upload held in memory. Never throws for bad file content: problems are in `parsed.problems`. */
+export function analyseUpload(bytes: Uint8Array, fileName: string, options: CorpusOptions): AnalysedUpload {
+  return analyseParsed(parseCorpus(bytes, parseOptionsOf(fileName, options)), fileName, options);
 }
 
 export function toPreview(a: AnalysedUpload): CorpusPreview {
