@@ -193,7 +193,11 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
         let evaluation: RunnerEvaluationJob | null = null;
         try {
           // Evaluations first: someone waits at the page for them, and they are short beside a training run.
-          evaluation = await api.claimEvaluation();
+          // A server without evaluation routes (404) or a passing fault here must not keep runs from training.
+          evaluation = await api.claimEvaluation().catch((e: unknown) => {
+            if (isRefusal(e)) throw e;
+            return null;
+          });
           if (!evaluation) job = await api.claim();
         } catch (e) {
           if (isRefusal(e)) {

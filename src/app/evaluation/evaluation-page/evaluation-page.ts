@@ -142,6 +142,7 @@ export class EvaluationPage {
     if (!run || this.busy()) return;
     this.problem.set(null);
     this.notice.set(null);
+    if (this.remote()?.status === 'failed') this.remote.set(null);
     const key = evaluationSettingsKey(evaluationSettingsSchema.parse(settings));
     const same = this.stored().find((e) => evaluationSettingsKey(e.settings) === key);
     if (same) {
