@@ -14,6 +14,7 @@ import { decodeCheckpoint } from '../../../shared/model/checkpoint';
 import { bearer, countRows, createBenchFixture, createTestApp, type BenchFixture, type TestApp } from '../../testing/test-app';
 import { ssmResultsFixture } from '../evaluations/evaluation-test-fixture';
 import { expireLeases } from '../runners/lease-expiry';
+import { prepareEmbeddedRunner } from '../runners/runner-startup';
 import { createRunnerToken } from '../runners/runners-test-helpers';
 import { createRun, ssmCheckpointBytes, ssmRunBody, uploadCorpus } from '../runs/runs-test-helpers';
 
@@ -156,5 +157,17 @@ describe('evaluation requests on the embedded back-end', () => {
     expect((await runnerApi(tokenB).end(second.id, { status: 'failed', reason: 'The test split of this corpus is empty.' })).status).toBe(200);
     expect(await readRequest(second.id)).toMatchObject({ status: 'failed', statusReason: 'The test split of this corpus is empty.' });
     expect((await runnerApi(tokenB).claim()).status).toBe(204);
+  });
+
+  it('keeps a request across a server restart: the one the embedded threads held waits again for the next runner', async () => {
+    const third = (await api().post(requestsUrl()).set(bearer(f.tokens.member)).send({ settings: { K: 16, seed: 7 } })).body as EvaluationRequestDto;
+    const first = await prepareEmbeddedRunner(t.orm, t.clock);
+    expect((await runnerApi(first.token).claim()).body.requestId).toBe(third.id);
+    expect((await readRequest(third.id)).status).toBe('running');
+    // What the server does at its next start: a new token for its threads, their work back to the queue.
+    const second = await prepareEmbeddedRunner(t.orm, t.clock);
+    expect(await readRequest(third.id)).toMatchObject({ status: 'waiting', runnerName: null });
+    expect((await runnerApi(first.token).claim()).status).toBe(401);
+    expect((await runnerApi(second.token).claim()).body.requestId).toBe(third.id);
   });
 });
