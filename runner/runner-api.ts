@@ -6,6 +6,9 @@
 import type { CheckpointDto, TrainingSet } from '../shared/api/runs';
 import type { CurvePoint as MetricPoint } from '../shared/training/metric-points';
 import type {
+  EvaluationStage, RunnerEvaluationEndRequest, RunnerEvaluationJob, RunnerEvaluationResultAnswer, RunnerEvaluationResultRequest,
+} from '../shared/api/evaluation-jobs';
+import type {
   RunnerFinishRequest, RunnerHeartbeatAnswer, RunnerHeartbeatRequest, RunnerJob, RunnerMetricsAnswer, RunnerProgressAnswer, RunnerProgressRequest,
 } from '../shared/api/runner-jobs';
 
@@ -70,6 +73,38 @@ export class RunnerApi {
 
   async finish(runId: string, body: RunnerFinishRequest): Promise<void> {
     await this.send('POST', `/jobs/${runId}/finish`, body);
+  }
+
+  /** An evaluation request to compute (`null` when none waits, 204). */
+  async claimEvaluation(requestId?: string): Promise<RunnerEvaluationJob | null> {
+    const res = await this.send('POST', '/evaluations/claim', requestId ? { requestId } : {});
+    if (res.status === 204) return null;
+    return (await res.json()) as RunnerEvaluationJob;
+  }
+
+  async evaluationCheckpoint(requestId: string): Promise<Uint8Array> {
+    return new Uint8Array(await (await this.send('GET', `/evaluations/${requestId}/checkpoint`)).arrayBuffer());
+  }
+
+  async evaluationTrainingSet(requestId: string): Promise<TrainingSet> {
+    return (await (await this.send('GET', `/evaluations/${requestId}/training-set`)).json()) as TrainingSet;
+  }
+
+  /** The newest checkpoint of the evaluation's GRU baseline run. */
+  async evaluationBaseline(requestId: string): Promise<Uint8Array> {
+    return new Uint8Array(await (await this.send('GET', `/evaluations/${requestId}/baseline-checkpoint`)).arrayBuffer());
+  }
+
+  async evaluationProgress(requestId: string, stage: EvaluationStage): Promise<void> {
+    await this.send('POST', `/evaluations/${requestId}/progress`, stage);
+  }
+
+  async evaluationResult(requestId: string, body: RunnerEvaluationResultRequest): Promise<RunnerEvaluationResultAnswer> {
+    return (await (await this.send('POST', `/evaluations/${requestId}/result`, body)).json()) as RunnerEvaluationResultAnswer;
+  }
+
+  async endEvaluation(requestId: string, body: RunnerEvaluationEndRequest): Promise<void> {
+    await this.send('POST', `/evaluations/${requestId}/end`, body);
   }
 
   private async send(method: string, path: string, body?: unknown, allowed: number[] = []): Promise<Response> {

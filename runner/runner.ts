@@ -11,6 +11,7 @@ import { Redis } from 'ioredis';
 import {
   RUNNER_QUEUE_NAME, RUNNER_WORKER_LOCK_MS, RUNNER_WORKER_MAX_STALLED, RUNNER_WORKER_STALLED_INTERVAL_MS, type RunnerJob, type RunnerQueueJobData,
 } from '../shared/api/runner-jobs';
+import { EVALUATION_JOB_NAME, type EvaluationQueueJobData, type RunnerEvaluationJob } from '../shared/api/evaluation-jobs';
 import { ProgressDisplay, type ProgressOutput } from './progress-display';
 import { RunnerApi, RunnerApiError } from './runner-api';
 import { ThreadSlot } from './thread-slot';
@@ -66,7 +67,7 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
   const sleep = (ms: number) => Promise.race([new Promise<void>((r) => setTimeout(r, ms).unref()), stopped]);
 
   const heartbeat = async () => {
-    const jobs = slots.filter((s) => s.progress).map((s) => ({ runId: s.progress!.runId, step: s.progress!.step, stepsPerSecond: s.progress!.stepsPerSecond }));
+    const jobs = slots.filter((s) => s.progress && s.kind === 'train').map((s) => ({ runId: s.progress!.runId, step: s.progress!.step, stepsPerSecond: s.progress!.stepsPerSecond }));
     try {
       const answer = await api.heartbeat({ name, threads: o.threads, jobs });
       for (const c of answer.controls) slots.find((s) => s.runId === c.runId)?.command(c.action);
@@ -90,6 +91,28 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
     return result;
   };
 
+  const evaluate = async (slot: ThreadSlot, job: RunnerEvaluationJob): Promise<JobResult> => {
+    const label = `evaluation of ${job.runName} at step ${job.checkpoint.step}`;
+    display.note(`${label}: claimed (request ${job.requestId})`);
+    // The computation blocks its thread: this thread reports its stage and so keeps the lease.
+    const ping = setInterval(() => {
+      const p = slot.progress;
+      if (p?.runId !== job.requestId) return;
+      void api.evaluationProgress(job.requestId, { done: p.step, total: Math.max(1, p.steps), next: (p.stage ?? '').slice(0, 120) })
+        .catch((e: unknown) => { if (isRefusal(e)) void giveUp(e); });
+    }, job.progressEverySeconds * 1000);
+    try {
+      const result = await slot.evaluate(job, o.serverUrl, o.token);
+      if ((result.status === 'lost' && result.reason?.startsWith('Thread')) || result.status === 'queued') {
+        await api.endEvaluation(job.requestId, { status: 'waiting' }).catch(() => undefined);
+      }
+      display.done(label, result);
+      return result;
+    } finally {
+      clearInterval(ping);
+    }
+  };
+
   let loops: Promise<void>[] = [];
   let queueWorker: QueueWorker<RunnerQueueJobData> | null = null;
   let connection: Redis | null = null;
@@ -98,6 +121,7 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
     connection = new Redis(o.queueUrl, { maxRetriesPerRequest: null });
     queueWorker = new QueueWorker<RunnerQueueJobData>(RUNNER_QUEUE_NAME, async (job: Job<RunnerQueueJobData>, lockToken?: string) => {
       if (stopping) throw new HandedBack('The runner is shutting down.');
+      if (job.name === EVALUATION_JOB_NAME) return evaluateQueued(job as Job<EvaluationQueueJobData>, lockToken);
       let claimed: RunnerJob | null;
       try {
         claimed = await api.claim(job.data.runId);
@@ -130,6 +154,33 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
       connection, concurrency: o.threads, lockDuration: RUNNER_WORKER_LOCK_MS,
       stalledInterval: RUNNER_WORKER_STALLED_INTERVAL_MS, maxStalledCount: RUNNER_WORKER_MAX_STALLED,
     });
+    /** An `evaluate` job: claim its request by id, compute it in a free thread, return. */
+    const evaluateQueued = async (job: Job<EvaluationQueueJobData>, lockToken?: string): Promise<string> => {
+      let claimed: RunnerEvaluationJob | null;
+      try {
+        claimed = await api.claimEvaluation(job.data.requestId);
+      } catch (e) {
+        if (isRefusal(e)) void giveUp(e);
+        if (e instanceof RunnerApiError && e.code === 'RUN_HELD') {
+          await job.moveToDelayed(Date.now() + Math.max(1, e.retryAfterSeconds ?? 5) * 1000, lockToken);
+          throw new DelayedError();
+        }
+        throw e;
+      }
+      if (!claimed) return 'not waiting';
+      const slot = free.shift();
+      if (!slot) {
+        await api.endEvaluation(claimed.requestId, { status: 'waiting' }).catch(() => undefined);
+        throw new HandedBack('No free runner thread (more jobs than threads).');
+      }
+      try {
+        const result = await evaluate(slot, claimed);
+        if (result.status === 'queued' || result.status === 'lost') throw new HandedBack(`Evaluation ${claimed.requestId} was given back (${result.reason ?? result.status}).`);
+        return result.status;
+      } finally {
+        free.push(slot);
+      }
+    };
     queueWorker.on('error', (e) => display.note(`queue: ${e.message}`));
   } else {
     loops = slots.map(async (slot) => {
@@ -139,8 +190,15 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
       let idle = IDLE_FIRST_MS;
       while (!stopping) {
         let job: RunnerJob | null = null;
+        let evaluation: RunnerEvaluationJob | null = null;
         try {
-          job = await api.claim();
+          // Evaluations first: someone waits at the page for them, and they are short beside a training run.
+          // A server without evaluation routes (404) or a passing fault here must not keep runs from training.
+          evaluation = await api.claimEvaluation().catch((e: unknown) => {
+            if (isRefusal(e)) throw e;
+            return null;
+          });
+          if (!evaluation) job = await api.claim();
         } catch (e) {
           if (isRefusal(e)) {
             void giveUp(e);
@@ -148,9 +206,15 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
           }
           display.note(`claim: ${(e as Error).message}`);
         }
-        if (stopping && job) {
-          await api.finish(job.runId, { status: 'queued', stepsDone: job.stepsDone }).catch(() => undefined);
+        if (stopping && (job || evaluation)) {
+          if (job) await api.finish(job.runId, { status: 'queued', stepsDone: job.stepsDone }).catch(() => undefined);
+          if (evaluation) await api.endEvaluation(evaluation.requestId, { status: 'waiting' }).catch(() => undefined);
           break;
+        }
+        if (evaluation) {
+          idle = IDLE_FIRST_MS;
+          await evaluate(slot, evaluation);
+          continue;
         }
         if (!job) {
           await sleep(idle);
@@ -173,6 +237,8 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
       stopping = true;
       wake();
       for (const s of slots) s.command('shutdown');
+      // An evaluation cannot save its work half-way: give it back now (another runner starts it again).
+      await Promise.all(slots.filter((s) => s.kind === 'evaluate').map((s) => s.giveBack()));
       const closing = Promise.all([...loops, queueWorker ? queueWorker.close() : Promise.resolve()]);
       await Promise.race([closing, new Promise((r) => setTimeout(r, STOP_WAIT_MS).unref())]);
       clearInterval(timer);

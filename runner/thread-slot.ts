@@ -3,6 +3,7 @@
  * A thread that dies mid-job resolves the job as `lost` (the runner hands the run back) and is started again.
  */
 import { Worker } from 'node:worker_threads';
+import type { RunnerEvaluationJob } from '../shared/api/evaluation-jobs';
 import type { RunnerJob } from '../shared/api/runner-jobs';
 import type { FromThread, ToThread } from './job-thread';
 import type { JobCommand, JobProgress, JobResult } from './train-job';
@@ -12,7 +13,7 @@ const ENTRY = new URL('./job-thread-entry.mjs', import.meta.url);
 export class ThreadSlot {
   private worker!: Worker;
   private ready!: Promise<void>;
-  private pending: { job: RunnerJob; resolve: (r: JobResult) => void } | null = null;
+  private pending: { job: { runId: string; stepsDone: number }; kind: 'train' | 'evaluate'; resolve: (r: JobResult) => void } | null = null;
   private closing = false;
   private started = false;
   private early: JobCommand | null = null;
@@ -36,10 +37,28 @@ export class ThreadSlot {
     return this.pending?.job.runId ?? null;
   }
 
+  /** What the current job is (null when idle): training a run, or an evaluation (its id is the request's). */
+  get kind(): 'train' | 'evaluate' | null {
+    return this.pending?.kind ?? null;
+  }
+
+  /** Computes an evaluation in this thread; resolves when its figures were stored, or it failed, was given back or lost. */
+  async evaluate(job: RunnerEvaluationJob, serverUrl: string, token: string): Promise<JobResult> {
+    if (this.pending) throw new Error(`Thread ${this.index} is busy with ${this.pending.job.runId}.`);
+    const result = new Promise<JobResult>((resolve) => { this.pending = { job: { runId: job.requestId, stepsDone: 0 }, kind: 'evaluate', resolve }; });
+    this.started = false;
+    this.early = null;
+    this.progress = { runId: job.requestId, runName: `evaluation of ${job.runName}`, step: 0, steps: 1, stepsPerSecond: null, bitsPerChar: null, isBound: null };
+    await this.ready;
+    this.started = true;
+    this.post({ type: 'evaluate', job, serverUrl, token });
+    return result;
+  }
+
   /** Trains `job` in this thread; resolves when it ended (finished, paused, stopped, failed, handed back or lost). */
   async run(job: RunnerJob, serverUrl: string, token: string): Promise<JobResult> {
     if (this.pending) throw new Error(`Thread ${this.index} is busy with run ${this.pending.job.runId}.`);
-    const result = new Promise<JobResult>((resolve) => { this.pending = { job, resolve }; });
+    const result = new Promise<JobResult>((resolve) => { this.pending = { job, kind: 'train', resolve }; });
     this.started = false;
     this.early = null;
     this.progress = { runId: job.runId, runName: job.runName, step: job.stepsDone, steps: 0, stepsPerSecond: null, bitsPerChar: null, isBound: null };
@@ -57,6 +76,12 @@ export class ThreadSlot {
       return;
     }
     this.post({ type: 'command', command });
+  }
+
+  /** Ends the current job as handed back (`queued`) without waiting for its thread (which is closed next). */
+  giveBack(): void {
+    const p = this.pending;
+    if (p) this.settleWith({ runId: p.job.runId, status: 'queued', step: p.job.stepsDone, reason: 'The runner is shutting down.' });
   }
 
   async close(): Promise<void> {
@@ -88,6 +113,14 @@ export class ThreadSlot {
       this.settle(null, 'the worker thread ended');
       this.spawn();
     });
+  }
+
+  private settleWith(result: JobResult): void {
+    const p = this.pending;
+    if (!p) return;
+    this.pending = null;
+    this.progress = null;
+    p.resolve(result);
   }
 
   private settle(result: JobResult | null, problem = 'unknown'): void {

@@ -29,6 +29,8 @@ export interface JobProgress {
   stepsPerSecond: number | null;
   bitsPerChar: number | null;
   isBound: boolean | null;
+  /** An evaluation's next stage (its step and steps count stages). */
+  stage?: string;
 }
 
 /** `lost`: the server gave the run to another runner (or revoked the token); nothing more was sent. */

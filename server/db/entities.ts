@@ -16,6 +16,7 @@ import { InvitationSchema } from '../modules/invitations/invitation.entity';
 import { CheckpointSchema, MetricPointSchema, RunSchema } from '../modules/runs/run-entities';
 import { UserSchema } from '../modules/users/user.entity';
 import { RunnerSchema } from '../modules/runners/runner.entity';
+import { EvaluationRequestSchema } from '../modules/evaluation-jobs/evaluation-request.entity';
 
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export const entities: EntitySchema<any, never>[] = [
@@ -34,4 +35,5 @@ export const entities: EntitySchema<any, never>[] = [
   EvaluationSchema,
   ReportSchema,
   RunnerSchema,
+  EvaluationRequestSchema,
 ];

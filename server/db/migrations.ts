@@ -11,6 +11,7 @@ import { Migration20261205093700HWordOrderIndex } from '../migrations/Migration2
 import { Migration20261205102200RunnersB } from '../migrations/Migration20261205102200_runners_b';
 import { Migration20261205103000SettingsKeysG } from '../migrations/Migration20261205103000_settings_keys_g';
 import { Migration20261205114500H2LeanWordIndexes } from '../migrations/Migration20261205114500_h2_lean_word_indexes';
+import { Migration20261205150000EEvaluationRequests } from '../migrations/Migration20261205150000_e_evaluation_requests';
 
 export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261202000000_foundation', class: Migration20261202000000Foundation },
@@ -21,4 +22,5 @@ export const migrationsList: MigrationObject[] = [
   { name: 'Migration20261205102200_runners_b', class: Migration20261205102200RunnersB },
   { name: 'Migration20261205103000_settings_keys_g', class: Migration20261205103000SettingsKeysG },
   { name: 'Migration20261205114500_h2_lean_word_indexes', class: Migration20261205114500H2LeanWordIndexes },
+  { name: 'Migration20261205150000_e_evaluation_requests', class: Migration20261205150000EEvaluationRequests },
 ];

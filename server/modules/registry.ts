@@ -26,6 +26,7 @@ import { runRoutes } from './runs/runs.routes';
 import { runnerBenchRoutes } from './runners/runner-bench.routes';
 import { runnerJobRoutes } from './runners/runner-jobs.routes';
 import { runnerAdminRoutes } from './runners/runners.routes';
+import { benchEvaluationRequestRoutes, checkpointEvaluationRequestRoutes } from './evaluation-jobs/evaluation-requests.routes';
 
 export interface ServerModule {
   name: string;
@@ -82,5 +83,12 @@ export const serverModules: ServerModule[] = [
       { path: '/runner', signedIn: false, router: runnerJobRoutes },
     ],
     benchRoutes: [{ path: '/', router: runnerBenchRoutes }],
+  },
+  {
+    name: 'evaluation-jobs',
+    benchRoutes: [
+      { path: '/runs', router: checkpointEvaluationRequestRoutes },
+      { path: '/evaluation-requests', router: benchEvaluationRequestRoutes },
+    ],
   },
 ];

@@ -86,3 +86,10 @@ benchRouteTable.push(
   { method: 'post', path: () => `/runs/${madeUpId}/control`, minRole: 'member', body: { action: 'pause' } },
   { method: 'get', path: () => `/runs/${madeUpId}/events`, minRole: 'viewer', allowedStatus: 404 },
 );
+
+// Evaluations sent to runners (server/modules/evaluation-jobs). Made-up ids: the role check comes before the lookup.
+benchRouteTable.push(
+  { method: 'get', path: () => `/runs/${madeUpId}/checkpoints/${madeUpId}/evaluation-requests`, minRole: 'viewer', allowedStatus: 404 },
+  { method: 'post', path: () => `/runs/${madeUpId}/checkpoints/${madeUpId}/evaluation-requests`, minRole: 'member', body: { settings: { K: 64 } } },
+  { method: 'get', path: () => `/evaluation-requests/${madeUpId}`, minRole: 'viewer', allowedStatus: 404 },
+);

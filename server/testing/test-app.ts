@@ -121,7 +121,7 @@ export async function countRows(t: TestApp, table: string): Promise<number> {
   return Number(rows[0]!.n);
 }
 
-export const DATA_TABLES = ['users', 'benches', 'memberships', 'invitations', 'password_reset_tokens', 'activity_events', 'runs', 'metric_points', 'checkpoints', 'grids', 'evaluations', 'reports', 'runners'];
+export const DATA_TABLES = ['users', 'benches', 'memberships', 'invitations', 'password_reset_tokens', 'activity_events', 'runs', 'metric_points', 'checkpoints', 'grids', 'evaluations', 'reports', 'runners', 'evaluation_requests'];
 
 export async function countAllRows(t: TestApp): Promise<Record<string, number>> {
   const counts: Record<string, number> = {};

@@ -20,6 +20,7 @@ import { Bench } from '../benches/bench.entity';
 import { Membership } from '../benches/membership.entity';
 import { Corpus } from '../corpora/corpus.entity';
 import { Evaluation } from '../evaluations/evaluation.entity';
+import { EvaluationRequest } from '../evaluation-jobs/evaluation-request.entity';
 import { Grid } from '../grids/grid.entity';
 import { Invitation } from '../invitations/invitation.entity';
 import { Report } from '../reports/report.entity';
@@ -150,6 +151,7 @@ export class AccountDeletion {
     await this.em.nativeUpdate(Run, { createdBy: userId }, { createdBy: null });
     await this.em.nativeUpdate(Grid, { createdBy: userId }, { createdBy: null });
     await this.em.nativeUpdate(Evaluation, { createdBy: userId }, { createdBy: null });
+    await this.em.nativeUpdate(EvaluationRequest, { createdBy: userId }, { createdBy: null });
     await this.em.nativeUpdate(Report, { createdBy: userId }, { createdBy: null });
     await this.em.nativeUpdate(ActivityEvent, { actor: userId }, { actor: null });
   }

@@ -56,7 +56,7 @@ export class EvaluationRepository {
     return { items: items.map(toEvaluationSummary), total };
   }
 
-  create(data: { bench: Bench; run: Run; checkpoint: Checkpoint; createdBy: User; settings: StoredEvaluationSettings; results: EvaluationResults; at: Date }): Evaluation {
+  create(data: { bench: Bench; run: Run; checkpoint: Checkpoint; createdBy: User | null; settings: StoredEvaluationSettings; results: EvaluationResults; at: Date }): Evaluation {
     return this.em.create(Evaluation, {
       bench: data.bench,
       run: data.run,

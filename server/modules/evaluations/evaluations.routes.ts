@@ -10,19 +10,19 @@ import { Router, type Request } from 'express';
 import { ErrorCode } from '../../../shared/api/errors';
 import { createEvaluationSchema, listEvaluationsQuerySchema, type EvaluationExistsBody, type EvaluationResults } from '../../../shared/api/evaluations';
 import type { AppContext } from '../../app-context';
-import { notFound, validationFailed } from '../../http-error';
+import { notFound } from '../../http-error';
 import { requireRole } from '../../middleware/bench-access';
 import { parseBody, parseQuery } from '../../middleware/validate';
 import { currentBench, currentUser } from '../../request-state';
-import { ActivityRepository } from '../activity/activity.repository';
 import { Checkpoint } from '../runs/checkpoint.entity';
 import { loadRun, requireControl } from '../runs/run-access';
-import { Run } from '../runs/run.entity';
+import type { Run } from '../runs/run.entity';
+import { storeEvaluation } from './evaluation-store';
 import { EvaluationRepository, toEvaluationDto, toEvaluationSummary } from './evaluation.repository';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
-async function loadCheckpoint(ctx: AppContext, req: Request, run: Run): Promise<Checkpoint> {
+export async function loadCheckpoint(ctx: AppContext, req: Request, run: Run): Promise<Checkpoint> {
   const id = String(req.params['checkpointId'] ?? '');
   const checkpoint = UUID.test(id) ? await ctx.orm.em.findOne(Checkpoint, { id, run }) : null;
   if (!checkpoint) throw notFound('This checkpoint');
@@ -56,35 +56,21 @@ export function checkpointEvaluationRoutes(ctx: AppContext): Router {
     const checkpoint = await loadCheckpoint(ctx, req, run);
     const body = parseBody(createEvaluationSchema, req.body);
     const { bench } = currentBench(req);
-    const me = currentUser(req);
-    const family = body.results.family;
-    if (family !== run.family) {
-      throw validationFailed({ 'results.family': `These figures are of a ${family} model, but "${run.name}" is a ${run.family} run; evaluate this run's checkpoint.` });
-    }
-    if (body.settings.baselineRunId) {
-      const baseline = await ctx.orm.em.findOne(Run, { id: body.settings.baselineRunId, bench });
-      if (!baseline) throw validationFailed({ 'settings.baselineRunId': 'Choose a baseline run of this bench; this one does not exist here.' });
-    }
-    const existing = await evaluations().findSame(checkpoint, body.settings);
-    if (existing) {
+    const stored = await storeEvaluation(ctx.orm.em, {
+      bench, run, checkpoint, by: currentUser(req), settings: body.settings, results: body.results as EvaluationResults, at: ctx.clock.now(),
+    });
+    const evaluation = stored.evaluation;
+    if (stored.existing) {
       const answer: EvaluationExistsBody = {
         error: {
           code: ErrorCode.EvaluationExists as 'EVALUATION_EXISTS',
           message: `This checkpoint was already evaluated with the same settings (step ${checkpoint.step}); the stored figures are in "existing".`,
-          existing: toEvaluationDto(existing),
+          existing: toEvaluationDto(evaluation),
         },
       };
       res.status(409).json(answer);
       return;
     }
-    const now = ctx.clock.now();
-    const evaluation = evaluations().create({
-      bench, run, checkpoint, createdBy: me, settings: body.settings,
-      results: body.results as EvaluationResults, at: now,
-    });
-    new ActivityRepository(ctx.orm.em).record(bench, me, 'evaluation.stored',
-      `${me.displayName} stored an evaluation of "${run.name}" at step ${checkpoint.step} (K = ${body.settings.K}).`, now);
-    await ctx.orm.em.flush();
     res.status(201).json(toEvaluationDto(evaluation));
   });
 

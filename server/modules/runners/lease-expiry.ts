@@ -8,14 +8,17 @@
  * `RunnerJobService.releaseExpired`, beside the claim and release rules.
  */
 import type { AppContext } from '../../app-context';
+import { EvaluationJobService } from '../evaluation-jobs/evaluation-job.service';
 import { RunnerJobService } from './runner-job.service';
 
 /** How often the server looks for runs whose lease ran out. */
 export const LEASE_CHECK_EVERY_MS = 5000;
 
 /** Puts every runner run whose lease ran out back in the queue; returns how many. */
-export function expireLeases(ctx: AppContext): Promise<number> {
-  return new RunnerJobService(ctx, ctx.orm.em.fork()).releaseExpired();
+export async function expireLeases(ctx: AppContext): Promise<number> {
+  const runs = await new RunnerJobService(ctx, ctx.orm.em.fork()).releaseExpired();
+  // Evaluation requests follow the same lease rule (they wait again for another runner).
+  return runs + (await new EvaluationJobService(ctx, ctx.orm.em.fork()).releaseExpired());
 }
 
 /** Checks for expired leases every LEASE_CHECK_EVERY_MS; returns the function that stops the checks. */

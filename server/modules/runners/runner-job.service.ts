@@ -24,6 +24,7 @@ import { MetricRepository } from '../runs/metric.repository';
 import { Run } from '../runs/run.entity';
 import { withRunLock } from '../runs/run-lock';
 import { RunService } from '../runs/run.service';
+import { EvaluationJobService } from '../evaluation-jobs/evaluation-job.service';
 import type { Runner } from './runner.entity';
 import { leaseUntil } from './runner.repository';
 
@@ -225,6 +226,7 @@ export class RunnerJobService {
   async releaseAll(runner: Runner): Promise<number> {
     const runs = await this.em.find(Run, { runner }, { populate: ['bench', 'runner'] });
     for (const run of runs) await this.giveBack(run, () => run.runner?.id === runner.id);
+    await new EvaluationJobService(this.ctx, this.em).releaseAll(runner.id);
     return runs.length;
   }
 

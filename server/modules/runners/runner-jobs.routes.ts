@@ -28,12 +28,14 @@ import { MetricRepository } from '../runs/metric.repository';
 import { corpusSplit } from '../runs/run-settings';
 import { currentRunner, requireRunner } from './runner-auth';
 import { RunHeldError, RunnerJobService } from './runner-job.service';
+import { runnerEvaluationRoutes } from '../evaluation-jobs/runner-evaluation.routes';
 
 export function runnerJobRoutes(ctx: AppContext): Router {
   const router = Router();
   router.use(routineRequests);
   router.use(requireRunner(ctx));
   const jobs = () => new RunnerJobService(ctx);
+  router.use('/evaluations', runnerEvaluationRoutes(ctx));
 
   router.post('/heartbeat', async (req, res) => {
     const body = parseBody(runnerHeartbeatSchema, req.body);

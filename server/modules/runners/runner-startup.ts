@@ -34,6 +34,8 @@ export async function releaseRunsOf(em: EntityManager, runnerId: string): Promis
     [runnerId],
     'run',
   );
+  // Its evaluation requests wait again too (a runner starts an evaluation over).
+  await em.execute("update evaluation_requests set status = 'waiting', runner_id = null, lease_expires_at = null, stage = null where runner_id = ? and status = 'running'", [runnerId], 'run');
   return Number((result as { affectedRows?: number; changes?: number }).affectedRows ?? (result as { changes?: number }).changes ?? 0);
 }
 
@@ -41,10 +43,11 @@ export async function releaseRunsOf(em: EntityManager, runnerId: string): Promis
 export async function ensureQueuedJobs(orm: Orm, queue: RunQueue): Promise<number> {
   if (queue.backend !== 'bullmq') return 0;
   const em = orm.em.fork();
+  const evaluations = await ensureQueuedEvaluations(em, queue);
   const rows: { id: string; bench_id: string }[] = await em
     .getConnection()
     .execute("select id, bench_id from runs where placement = 'runners' and status = 'queued' and archived = 0 and runner_id is null order by created_at, id");
-  if (rows.length === 0) return 0;
+  if (rows.length === 0) return evaluations;
   const present = (await queue.jobsWaitingFor(rows.map((r) => r.id))) ?? new Set<string>();
   const perBench = new Map<string, number>();
   const missing = [];
@@ -54,5 +57,17 @@ export async function ensureQueuedJobs(orm: Orm, queue: RunQueue): Promise<numbe
     if (!present.has(row.id)) missing.push({ runId: row.id, benchId: row.bench_id, priority: n });
   }
   await queue.enqueue(missing);
+  return evaluations + missing.length;
+}
+
+/** Adds an `evaluate` job for every waiting evaluation request the queue has none for; returns how many. */
+async function ensureQueuedEvaluations(em: EntityManager, queue: RunQueue): Promise<number> {
+  const rows: { id: string; run_id: string; bench_id: string }[] = await em
+    .getConnection()
+    .execute("select id, run_id, bench_id from evaluation_requests where status = 'waiting' order by created_at, id");
+  if (rows.length === 0) return 0;
+  const present = (await queue.evaluationJobsFor(rows.map((r) => r.id))) ?? new Set<string>();
+  const missing = rows.filter((r) => !present.has(r.id)).map((r) => ({ requestId: r.id, runId: r.run_id, benchId: r.bench_id }));
+  await queue.enqueueEvaluations(missing);
   return missing.length;
 }

@@ -1,7 +1,8 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
-import type { CreateEvaluationRequest, EvaluationDto, EvaluationSummaryDto } from '../../../shared/api/evaluations';
+import type { EvaluationRequestDto } from '../../../shared/api/evaluation-jobs';
+import type { CreateEvaluationRequest, EvaluationDto, EvaluationSettingsInput, EvaluationSummaryDto } from '../../../shared/api/evaluations';
 
 const enc = encodeURIComponent;
 
@@ -34,5 +35,19 @@ export class EvaluationsApi {
 
   create(benchId: string, runId: string, checkpointId: string, body: CreateEvaluationRequest): Promise<EvaluationDto> {
     return firstValueFrom(this.http.post<EvaluationDto>(this.base(benchId, runId, checkpointId), body)).then(withDefaults);
+  }
+
+  /** Sends the evaluation to the runners (the same request again returns the one that waits or runs). */
+  request(benchId: string, runId: string, checkpointId: string, settings: EvaluationSettingsInput): Promise<EvaluationRequestDto> {
+    return firstValueFrom(this.http.post<EvaluationRequestDto>(`${this.base(benchId, runId, checkpointId).replace(/evaluations$/, 'evaluation-requests')}`, { settings }));
+  }
+
+  /** The evaluations sent to runners for a checkpoint, newest first. */
+  requests(benchId: string, runId: string, checkpointId: string): Promise<EvaluationRequestDto[]> {
+    return firstValueFrom(this.http.get<EvaluationRequestDto[]>(this.base(benchId, runId, checkpointId).replace(/evaluations$/, 'evaluation-requests')));
+  }
+
+  requestState(benchId: string, requestId: string): Promise<EvaluationRequestDto> {
+    return firstValueFrom(this.http.get<EvaluationRequestDto>(`/api/benches/${enc(benchId)}/evaluation-requests/${enc(requestId)}`));
   }
 }

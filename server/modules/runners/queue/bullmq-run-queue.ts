@@ -13,6 +13,7 @@ import {
   RUNNER_QUEUE_NAME,
   type RunnerQueueJobData,
 } from '../../../../shared/api/runner-jobs';
+import { EVALUATION_JOB_NAME, type EvaluationQueueJobData } from '../../../../shared/api/evaluation-jobs';
 import type { QueuedRun, RunQueue } from './run-queue';
 
 /** BullMQ's largest priority. */
@@ -45,6 +46,25 @@ export class BullmqRunQueue implements RunQueue {
         },
       })),
     );
+  }
+
+  /** Evaluation jobs beside the training jobs (job name `evaluate`, job id = request id, priority 1: they are short). */
+  async enqueueEvaluations(requests: readonly EvaluationQueueJobData[]): Promise<void> {
+    if (requests.length === 0) return;
+    await this.queue.addBulk(
+      requests.map((r) => ({
+        name: EVALUATION_JOB_NAME,
+        data: { runId: r.runId, benchId: r.benchId, requestId: r.requestId },
+        opts: {
+          jobId: r.requestId, priority: 1, attempts: RUNNER_JOB_ATTEMPTS, backoff: { type: 'exponential', delay: RUNNER_JOB_BACKOFF_MS },
+          removeOnComplete: true, removeOnFail: true,
+        },
+      })),
+    );
+  }
+
+  evaluationJobsFor(requestIds: readonly string[]): Promise<Set<string>> {
+    return this.jobsWaitingFor(requestIds);
   }
 
   async withdraw(runId: string): Promise<void> {

@@ -6,6 +6,7 @@
  *  - `bullmq` (QUEUE_URL=redis://...): one BullMQ job per waiting run (job id = run id), consumed by any number
  *    of runner processes, which claim the job's run by id.
  */
+import type { EvaluationQueueJobData } from '../../../../shared/api/evaluation-jobs';
 import type { QueueBackend } from '../../../../shared/api/runners';
 
 export interface QueuedRun {
@@ -24,6 +25,10 @@ export interface RunQueue {
   /** Jobs the queue holds for these run ids (BullMQ), or null when the rows are the queue (embedded). */
   jobsWaitingFor(runIds: readonly string[]): Promise<Set<string> | null>;
   close(): Promise<void>;
+  /** Evaluation requests that wait for a runner (created, or given back): BullMQ `evaluate` jobs, job id = request id. */
+  enqueueEvaluations(requests: readonly EvaluationQueueJobData[]): Promise<void>;
+  /** Evaluation jobs the queue holds for these request ids (BullMQ), or null when the rows are the queue (embedded). */
+  evaluationJobsFor(requestIds: readonly string[]): Promise<Set<string> | null>;
 }
 
 /** The embedded back-end: the rows are the queue, so adding and withdrawing are no-ops. */
@@ -35,4 +40,8 @@ export class EmbeddedRunQueue implements RunQueue {
     return null;
   }
   async close(): Promise<void> {}
+  async enqueueEvaluations(): Promise<void> {}
+  async evaluationJobsFor(): Promise<null> {
+    return null;
+  }
 }

@@ -6,9 +6,11 @@ import { MatButtonHarness } from '@angular/material/button/testing';
 import { MatInputHarness } from '@angular/material/input/testing';
 import { MatSelectHarness } from '@angular/material/select/testing';
 import { provideRouter } from '@angular/router';
-import type { CreateEvaluationRequest, EvaluationDto, EvaluationSummaryDto } from '../../../../shared/api/evaluations';
+import type { EvaluationRequestDto } from '../../../../shared/api/evaluation-jobs';
+import type { CreateEvaluationRequest, EvaluationDto, EvaluationSettingsInput, EvaluationSummaryDto } from '../../../../shared/api/evaluations';
 import type { RunDto } from '../../../../shared/api/runs';
 import { CurrentBench } from '../../benches/current-bench';
+import { RunnersApi } from '../../runners/runners-api';
 import { RunsApi } from '../../runs/runs-api';
 import type { EvaluationJobInput, EvaluationJobResult } from '../../workers/evaluator-api';
 import { EVALUATOR_FACTORY } from '../../workers/evaluator-client';
@@ -42,11 +44,25 @@ function dto(settings: EvaluationSummaryDto['settings'], id: string): Evaluation
   };
 }
 
-async function setUp(stored: EvaluationDto[] = [], hang = false) {
+/** A runner evaluation as the server answers it (waiting, running, finished). */
+function requestDto(status: EvaluationRequestDto['status'], extra: Partial<EvaluationRequestDto> = {}): EvaluationRequestDto {
+  return {
+    id: 'q1', benchId: BENCH, runId: RUN_ID, checkpoint: { id: CHECKPOINT_ID, step: 40 }, settings: dto({ K: 256, seed: 1 } as EvaluationDto['settings'], 'x').settings,
+    status, statusReason: null, runnerName: status === 'running' ? 'Attic box' : null, stage: status === 'running' ? { done: 2, total: 8, next: 'noise draws' } : null,
+    evaluationId: null, createdBy: null, createdAt: '2026-12-02T00:00:00Z', updatedAt: '2026-12-02T00:00:00Z', ...extra,
+  };
+}
+
+async function setUp(stored: EvaluationDto[] = [], hang = false, onlineRunners = 0, states: EvaluationRequestDto[] = []) {
   const evaluate = vi.fn(async (input: EvaluationJobInput) =>
     hang ? new Promise<EvaluationJobResult>(() => undefined) : results(input.ngramOrder));
   const close = vi.fn();
   const saved: EvaluationDto[] = [...stored];
+  let sent = requestDto('waiting');
+  const sendRequest = vi.fn(async (_b: string, _r: string, _c: string, settings: EvaluationSettingsInput) => {
+    sent = requestDto('waiting', { settings: { ...sent.settings, ...settings } as EvaluationDto['settings'] });
+    return sent;
+  });
   const create = vi.fn(async (_b: string, _r: string, _c: string, body: CreateEvaluationRequest) => {
     const e = dto(body.settings as EvaluationDto['settings'], `e${saved.length + 1}`);
     saved.unshift(e);
@@ -71,7 +87,18 @@ async function setUp(stored: EvaluationDto[] = [], hang = false) {
       },
       {
         provide: EvaluationsApi,
-        useValue: { list: async () => saved.slice(), get: async (_b: string, id: string) => saved.find((e) => e.id === id)!, create },
+        useValue: {
+          list: async () => saved.slice(), get: async (_b: string, id: string) => saved.find((e) => e.id === id)!, create,
+          requests: async () => [], request: sendRequest, requestState: async () => {
+            const next = { ...states.shift()!, settings: sent.settings };
+            if (next.status === 'finished') saved.unshift(dto(next.settings, next.evaluationId!));
+            return next;
+          },
+        },
+      },
+      {
+        provide: RunnersApi,
+        useValue: { availability: async () => ({ backend: 'embedded', onlineRunners, onlineThreads: onlineRunners, waiting: 0, active: 0, canSend: true }) },
       },
       { provide: EVALUATOR_FACTORY, useValue: () => ({ api: { evaluate }, close }) },
     ],
@@ -85,7 +112,7 @@ async function setUp(stored: EvaluationDto[] = [], hang = false) {
   // The page loads the run, its checkpoints and the stored evaluations before it shows the form.
   await vi.waitFor(() => expect((fixture.nativeElement as HTMLElement).querySelector('nw-evaluation-settings')).not.toBeNull());
   await fixture.whenStable();
-  return { fixture, loader, evaluate, create, close };
+  return { fixture, loader, evaluate, create, close, sendRequest };
 }
 
 type Setup = Awaited<ReturnType<typeof setUp>>;
@@ -151,5 +178,33 @@ describe('Evaluation page cancel', { timeout: 30_000 }, () => {
     expect(create).not.toHaveBeenCalled();
     expect(text(fixture, 'evaluation-progress')).toBe('');
     expect(await loader.getAllHarnesses(MatButtonHarness.with({ text: /Cancel/ }))).toHaveLength(0);
+  });
+});
+
+describe('Evaluation page on runners', { timeout: 30_000 }, () => {
+  it('sends the evaluation to the runners when one is online, shows it waiting and running, then the figures it stored', async () => {
+    const states = [requestDto('running'), requestDto('finished', { evaluationId: 'r1' })];
+    const { fixture, loader, evaluate, create, sendRequest } = await setUp([], false, 1, states);
+    await vi.waitFor(() => expect(text(fixture, 'placement-explanation')).toMatch(/A runner computes the figures/));
+    await choose(loader, null, '4');
+    await vi.waitFor(() => expect(sendRequest).toHaveBeenCalledTimes(1));
+    expect(sendRequest.mock.calls[0]![3]).toMatchObject({ heldOutSplit: 'test', ngramOrder: 4 });
+    await fixture.whenStable();
+    expect(text(fixture, 'runner-evaluation')).toMatch(/Waiting for a runner/);
+    await vi.waitFor(() => expect(text(fixture, 'runner-evaluation')).toMatch(/Attic box computes noise draws \(2 of 8 done\)/), { timeout: 5000 });
+    await vi.waitFor(() => expect(text(fixture, 'evaluation-notice')).toMatch(/A runner stored these figures/), { timeout: 5000 });
+    await fixture.whenStable();
+    expect(text(fixture, 'shown-settings')).toBe('test split, Kneser–Ney order 4,');
+    expect(text(fixture, 'runner-evaluation')).toBe('');
+    expect(evaluate).not.toHaveBeenCalled();
+    expect(create).not.toHaveBeenCalled();
+  });
+
+  it('keeps the evaluation in the tab while no runner is online', async () => {
+    const { fixture, loader, evaluate, sendRequest } = await setUp([], false, 0);
+    await vi.waitFor(() => expect(text(fixture, 'placement-explanation')).toMatch(/No runner is online now/));
+    await choose(loader, null, null);
+    await vi.waitFor(() => expect(evaluate).toHaveBeenCalledTimes(1));
+    expect(sendRequest).not.toHaveBeenCalled();
   });
 });

@@ -1,5 +1,5 @@
 import { DatePipe, DecimalPipe } from '@angular/common';
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { HttpClient } from '@angular/common/http';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
@@ -10,11 +10,14 @@ import { firstValueFrom } from 'rxjs';
 import {
   evaluationSettingsKey, evaluationSettingsSchema, type EvaluationDto, type EvaluationSettingsInput, type EvaluationSummaryDto,
 } from '../../../../shared/api/evaluations';
+import type { EvaluationRequestDto } from '../../../../shared/api/evaluation-jobs';
 import type { ReportDto } from '../../../../shared/api/reports';
+import type { RunPlacement } from '../../../../shared/api/runners';
 import type { CheckpointDto, RunDto, SsmRunSettings } from '../../../../shared/api/runs';
 import { ApiError } from '../../core/api-error';
 import { CurrentBench } from '../../benches/current-bench';
 import { FAMILY_LABELS } from '../../runs/run-labels';
+import { PlacementChoice } from '../../runners/placement-choice/placement-choice';
 import { RunsApi } from '../../runs/runs-api';
 import { askReportTitle } from '../../ui/report-title-dialog/report-title-dialog';
 import type { EvaluationProgress } from '../../workers/evaluator-api';
@@ -33,7 +36,7 @@ import { runAndStore } from './evaluation-runner';
   selector: 'nw-evaluation-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [DatePipe, DecimalPipe, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, CompletionPanel, EvaluationCharts,
-    EvaluationFigures, EvaluationSamples, EvaluationSettingsForm, NoiseMapPanel],
+    EvaluationFigures, EvaluationSamples, EvaluationSettingsForm, NoiseMapPanel, PlacementChoice],
   providers: [EvaluationWorker],
   templateUrl: './evaluation-page.html',
   styleUrl: './evaluation-page.scss',
@@ -60,8 +63,21 @@ export class EvaluationPage {
   protected readonly reportBusy = signal(false);
   protected readonly notice = signal<string | null>(null);
   protected readonly familyLabels = FAMILY_LABELS;
+  /** Where "Evaluate" computes: this tab's worker, or the runners (the default when one is online). */
+  protected readonly placement = signal<RunPlacement>('tab');
+  /** The evaluation sent to runners that this page follows (waiting, running, or the last one that failed). */
+  protected readonly remote = signal<EvaluationRequestDto | null>(null);
+  private pollTimer: ReturnType<typeof setTimeout> | null = null;
 
-  protected readonly busy = computed(() => this.progress() !== null);
+  protected readonly remoteActive = computed(() => {
+    const r = this.remote();
+    return r !== null && (r.status === 'waiting' || r.status === 'running');
+  });
+  protected readonly remotePercent = computed(() => {
+    const s = this.remote()?.stage;
+    return s && s.total > 0 ? (100 * s.done) / s.total : 0;
+  });
+  protected readonly busy = computed(() => this.progress() !== null || this.remoteActive());
   protected readonly percent = computed(() => {
     const p = this.progress();
     return p && p.total > 0 ? (100 * p.done) / p.total : 0;
@@ -79,6 +95,7 @@ export class EvaluationPage {
   protected readonly loadModel = () => this.worker.open(() => this.runs.downloadCheckpoint(this.benchId(), this.runId(), this.checkpointId()));
 
   constructor() {
+    inject(DestroyRef).onDestroy(() => this.stopPolling());
     effect(() => {
       const [benchId, runId, checkpointId] = [this.benchId(), this.runId(), this.checkpointId()];
       untracked(() => {
@@ -99,6 +116,10 @@ export class EvaluationPage {
       this.stored.set(stored);
       this.problem.set(null);
       if (stored[0]) await this.show(stored[0].id);
+      // An evaluation sent to runners earlier that is still on its way (or failed since) is followed again.
+      const requests = await this.evaluations.requests(benchId, runId, checkpointId);
+      const open = requests.find((r) => r.status === 'waiting' || r.status === 'running') ?? (requests[0]?.status === 'failed' ? requests[0] : null);
+      if (open) this.follow(open);
       if (run.family === 'ssm' && run.corpus) {
         const grus = await this.runs.list(benchId, { corpusId: run.corpus.id, family: 'gru', archived: 'all', limit: 100 });
         this.baselines.set(grus.items.filter((g) => g.checkpointCount > 0).map((g) => ({ runId: g.id, label: `${g.name} (state size ${(g.settings as { model: { stateSize: number } }).model.stateSize})` })));
@@ -121,11 +142,16 @@ export class EvaluationPage {
     if (!run || this.busy()) return;
     this.problem.set(null);
     this.notice.set(null);
+    if (this.remote()?.status === 'failed') this.remote.set(null);
     const key = evaluationSettingsKey(evaluationSettingsSchema.parse(settings));
     const same = this.stored().find((e) => evaluationSettingsKey(e.settings) === key);
     if (same) {
       await this.show(same.id);
       this.notice.set('An evaluation with exactly these settings is stored already; it is shown without computing it again.');
+      return;
+    }
+    if (this.placement() === 'runners') {
+      await this.sendToRunners(run, settings);
       return;
     }
     this.progress.set({ done: 0, total: 1, next: 'starting the worker' });
@@ -141,6 +167,50 @@ export class EvaluationPage {
       this.worker.forgetCancel();
       this.progress.set(null);
     }
+  }
+
+  private async sendToRunners(run: RunDto, settings: EvaluationSettingsInput): Promise<void> {
+    try {
+      this.follow(await this.evaluations.request(this.benchId(), run.id, this.checkpointId(), settings));
+    } catch (error) {
+      if (error instanceof ApiError && error.code === 'EVALUATION_EXISTS') {
+        this.stored.set(await this.evaluations.list(this.benchId(), run.id, this.checkpointId()));
+        const key = evaluationSettingsKey(evaluationSettingsSchema.parse(settings));
+        const same = this.stored().find((e) => evaluationSettingsKey(e.settings) === key);
+        if (same) await this.show(same.id);
+      }
+      this.problem.set(problemText(error));
+    }
+  }
+
+  /** Shows a runner evaluation's state and asks for it every 2 s until its figures land or it failed. */
+  private follow(request: EvaluationRequestDto): void {
+    this.remote.set(request);
+    this.stopPolling();
+    if (request.status === 'finished') {
+      void this.landed(request);
+      return;
+    }
+    if (request.status === 'failed') return;
+    this.pollTimer = setTimeout(() => {
+      this.pollTimer = null;
+      this.evaluations.requestState(this.benchId(), request.id).then((next) => this.follow(next), (error: unknown) => {
+        this.problem.set(problemText(error));
+        this.pollTimer = setTimeout(() => this.follow(request), 5000);
+      });
+    }, 2000);
+  }
+
+  private async landed(request: EvaluationRequestDto): Promise<void> {
+    this.remote.set(null);
+    this.stored.set(await this.evaluations.list(this.benchId(), request.runId, this.checkpointId()));
+    if (request.evaluationId) await this.show(request.evaluationId);
+    this.notice.set(`A runner stored these figures${request.runnerName ? ` (${request.runnerName})` : ''}.`);
+  }
+
+  private stopPolling(): void {
+    if (this.pollTimer !== null) clearTimeout(this.pollTimer);
+    this.pollTimer = null;
   }
 
   /** Ends the evaluation under way: its worker is terminated and nothing is stored. */

@@ -18,16 +18,16 @@ import { RunnersApi } from '../runners-api';
     <div class="placement" data-testid="placement-choice">
       @if (availability(); as a) {
         @if (a.canSend) {
-          <mat-radio-group [value]="placement()" (change)="choose($event.value)" aria-label="Where the training runs">
-            <mat-radio-button value="tab">Train in this tab</mat-radio-button>
+          <mat-radio-group [value]="placement()" (change)="choose($event.value)" [attr.aria-label]="task() === 'evaluate' ? 'Where the evaluation runs' : 'Where the training runs'">
+            <mat-radio-button value="tab">{{ task() === 'evaluate' ? 'Evaluate in this tab' : 'Train in this tab' }}</mat-radio-button>
             <mat-radio-button value="runners" [disabled]="a.onlineRunners === 0">Send to runners</mat-radio-button>
           </mat-radio-group>
           <p class="line" data-testid="placement-explanation">{{ explanation() }}</p>
         } @else {
-          <p class="line" data-testid="placement-explanation">{{ plural() ? 'The runs train' : 'The run trains' }} in this tab: only members, coaches and owners of the bench can send runs to the runners.</p>
+          <p class="line" data-testid="placement-explanation">{{ subject() }} in this tab: only members, coaches and owners of the bench can send {{ task() === 'evaluate' ? 'evaluations' : 'runs' }} to the runners.</p>
         }
       } @else if (problem(); as m) {
-        <p class="line" data-testid="placement-explanation">{{ plural() ? 'The runs train' : 'The run trains' }} in this tab: the runners' status could not be read ({{ m }})</p>
+        <p class="line" data-testid="placement-explanation">{{ subject() }} in this tab: the runners' status could not be read ({{ m }})</p>
       }
     </div>
   `,
@@ -44,6 +44,9 @@ export class PlacementChoice {
   /** Wording for several runs (grids, checks) or one. */
   readonly plural = input(false);
   readonly placement = model<RunPlacement>('tab');
+  /** What is placed: training (run, grid and check forms) or an evaluation (the evaluation page). */
+  readonly task = input<'train' | 'evaluate'>('train');
+  protected readonly subject = computed(() => (this.task() === 'evaluate' ? 'The evaluation runs' : this.plural() ? 'The runs train' : 'The run trains'));
   private readonly api = inject(RunnersApi);
   protected readonly availability = signal<RunnerAvailability | null>(null);
   protected readonly problem = signal<string | null>(null);
@@ -53,6 +56,7 @@ export class PlacementChoice {
     const a = this.availability();
     if (!a) return '';
     const what = this.plural() ? 'the runs' : 'the run';
+    if (this.task() === 'evaluate') return this.evaluationExplanation(a);
     if (a.onlineRunners === 0) {
       return `No runner is online now, so ${what} can only train in this tab (a worker of this page; closing the page pauses training). The instance admin starts runners from the Runners page.`;
     }
@@ -63,6 +67,14 @@ export class PlacementChoice {
     }
     return `A worker of this tab trains ${what}; closing or reloading the page pauses training until the page is open again.`;
   });
+
+  private evaluationExplanation(a: RunnerAvailability): string {
+    if (a.onlineRunners === 0) return 'No runner is online now, so the evaluation can only run in this tab (a worker of this page; leaving the page cancels it).';
+    if (this.placement() === 'runners') {
+      return `A runner computes the figures (${a.onlineThreads} runner thread${a.onlineThreads === 1 ? '' : 's'} online) and stores them; you can leave this page and come back for them.`;
+    }
+    return 'A worker of this tab computes the figures; leaving or reloading the page cancels the evaluation.';
+  }
 
   constructor() {
     effect(() => {
