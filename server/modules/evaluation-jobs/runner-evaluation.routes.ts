@@ -10,7 +10,6 @@ import {
   runnerEvaluationClaimSchema, runnerEvaluationEndSchema, runnerEvaluationProgressSchema, runnerEvaluationResultSchema, type RunnerEvaluationResultAnswer,
 } from '../../../shared/api/evaluation-jobs';
 import type { EvaluationResults } from '../../../shared/api/evaluations';
-import type { RunHeldErrorBody } from '../../../shared/api/runner-jobs';
 import type { TrainingSet } from '../../../shared/api/runs';
 import type { AppContext } from '../../app-context';
 import { notFound } from '../../http-error';
@@ -18,8 +17,8 @@ import { parseBody } from '../../middleware/validate';
 import { CorpusRepository } from '../corpora/corpus.repository';
 import { Checkpoint } from '../runs/checkpoint.entity';
 import { Run } from '../runs/run.entity';
+import { answerClaim } from '../runners/claim-answer';
 import { currentRunner } from '../runners/runner-auth';
-import { RunHeldError } from '../runners/runner-job.service';
 import { EvaluationJobService } from './evaluation-job.service';
 
 function sendBytes(res: Response, checkpoint: Checkpoint): void {
@@ -36,18 +35,7 @@ export function runnerEvaluationRoutes(ctx: AppContext): Router {
 
   router.post('/claim', async (req, res) => {
     const { requestId } = parseBody(runnerEvaluationClaimSchema, req.body);
-    try {
-      const job = await jobs().claim(currentRunner(req), requestId);
-      if (!job) {
-        res.status(204).end();
-        return;
-      }
-      res.json(job);
-    } catch (error) {
-      if (!(error instanceof RunHeldError)) throw error;
-      const body: RunHeldErrorBody = { error: { code: 'RUN_HELD', message: error.message, retryAfterSeconds: error.retryAfterSeconds } };
-      res.status(409).set('Retry-After', String(error.retryAfterSeconds)).json(body);
-    }
+    await answerClaim(res, () => jobs().claim(currentRunner(req), requestId));
   });
 
   router.get('/:requestId/checkpoint', async (req, res) => {

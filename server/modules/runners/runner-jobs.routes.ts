@@ -12,7 +12,6 @@ import {
   runnerHeartbeatSchema,
   runnerMetricsSchema,
   runnerProgressSchema,
-  type RunHeldErrorBody,
 } from '../../../shared/api/runner-jobs';
 import { MAX_METRIC_POINTS_PER_REQUEST, type TrainingSet } from '../../../shared/api/runs';
 import { splitOf } from '../../../shared/data/split';
@@ -26,8 +25,9 @@ import { checkpointBytes, rawCheckpointBody } from '../runs/checkpoint-upload';
 import { Checkpoint } from '../runs/checkpoint.entity';
 import { MetricRepository } from '../runs/metric.repository';
 import { corpusSplit } from '../runs/run-settings';
+import { answerClaim } from './claim-answer';
 import { currentRunner, requireRunner } from './runner-auth';
-import { RunHeldError, RunnerJobService } from './runner-job.service';
+import { RunnerJobService } from './runner-job.service';
 import { runnerEvaluationRoutes } from '../evaluation-jobs/runner-evaluation.routes';
 
 export function runnerJobRoutes(ctx: AppContext): Router {
@@ -44,18 +44,7 @@ export function runnerJobRoutes(ctx: AppContext): Router {
 
   router.post('/claim', async (req, res) => {
     const { runId } = parseBody(runnerClaimSchema, req.body);
-    try {
-      const job = await jobs().claim(currentRunner(req), runId);
-      if (!job) {
-        res.status(204).end();
-        return;
-      }
-      res.json(job);
-    } catch (error) {
-      if (!(error instanceof RunHeldError)) throw error;
-      const body: RunHeldErrorBody = { error: { code: 'RUN_HELD', message: error.message, retryAfterSeconds: error.retryAfterSeconds } };
-      res.status(409).set('Retry-After', String(error.retryAfterSeconds)).json(body);
-    }
+    await answerClaim(res, () => jobs().claim(currentRunner(req), runId));
   });
 
   router.get('/jobs/:runId/training-set', async (req, res) => {
