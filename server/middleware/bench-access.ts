@@ -11,8 +11,7 @@ import { notFound, roleTooLow } from '../http-error';
 import { BenchRepository } from '../modules/benches/bench.repository';
 import { MembershipRepository } from '../modules/benches/membership.repository';
 import { currentBench, currentUser } from '../request-state';
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+import { UUID } from '../ids';
 
 export function loadBench(ctx: AppContext): RequestHandler {
   return async (req, _res, next) => {

@@ -19,8 +19,7 @@ import { savableFromPool } from './corpus-pool-result';
 import { uploadReader } from './corpus-upload';
 import { deleteDecision, runsUsingCorpus } from './corpus-usage';
 import { CorpusRepository, canEditCorpus, toCorpusDetail, toCorpusSummary } from './corpus.repository';
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+import { UUID } from '../../ids';
 
 export function corporaRoutes(ctx: AppContext): Router {
   const router = Router({ mergeParams: true });

@@ -10,8 +10,7 @@ import { notFound } from '../../http-error';
 import { requireRole } from '../../middleware/bench-access';
 import { currentBench } from '../../request-state';
 import { CorpusRepository } from './corpus.repository';
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+import { UUID } from '../../ids';
 
 export function trainingSetRoutes(ctx: AppContext): Router {
   const router = Router({ mergeParams: true });

@@ -23,8 +23,8 @@ import { RunHeldError } from '../runners/runner-job.service';
 import { leaseUntil } from '../runners/runner.repository';
 import type { User } from '../users/user.entity';
 import { EvaluationRequest } from './evaluation-request.entity';
+import { UUID } from '../../ids';
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const populate = ['run', 'checkpoint', 'runner', 'createdBy'] as const;
 
 export function toEvaluationRequestDto(r: EvaluationRequest): EvaluationRequestDto {

@@ -19,8 +19,7 @@ import { loadRun, requireControl } from '../runs/run-access';
 import type { Run } from '../runs/run.entity';
 import { storeEvaluation } from './evaluation-store';
 import { EvaluationRepository, toEvaluationDto, toEvaluationSummary } from './evaluation.repository';
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+import { UUID } from '../../ids';
 
 export async function loadCheckpoint(ctx: AppContext, req: Request, run: Run): Promise<Checkpoint> {
   const id = String(req.params['checkpointId'] ?? '');

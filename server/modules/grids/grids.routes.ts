@@ -22,8 +22,7 @@ import { checkCorpusForRuns, createGridWithRuns } from './grid-create';
 import { Grid } from './grid.entity';
 import { canDeleteGrid, GridRepository } from './grid.repository';
 import { verdictOfGrid } from './learnability';
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+import { UUID } from '../../ids';
 
 async function loadGrid(ctx: AppContext, req: Request): Promise<Grid> {
   const id = String(req.params['gridId'] ?? '');

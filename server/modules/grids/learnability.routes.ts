@@ -14,8 +14,7 @@ import { corpusSplit } from '../runs/run-settings';
 import { checkCorpusForRuns, createGridWithRuns } from './grid-create';
 import { GridRepository } from './grid.repository';
 import { learnabilityCells } from './learnability';
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+import { UUID } from '../../ids';
 
 export function learnabilityRoutes(ctx: AppContext): Router {
   const router = Router({ mergeParams: true });

@@ -17,8 +17,7 @@ import { ActivityRepository } from '../activity/activity.repository';
 import { reportFileStem } from './report-file-name';
 import { buildSnapshot } from './report-snapshot';
 import { Report } from './report.entity';
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+import { UUID } from '../../ids';
 
 function summaryOf(r: Report): ReportSummaryDto {
   return {

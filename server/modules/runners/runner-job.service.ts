@@ -27,8 +27,7 @@ import { RunService } from '../runs/run.service';
 import { EvaluationJobService } from '../evaluation-jobs/evaluation-job.service';
 import type { Runner } from './runner.entity';
 import { leaseUntil } from './runner.repository';
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+import { UUID } from '../../ids';
 
 /** 409 RUN_HELD with the seconds until the other runner's lease ends. */
 export class RunHeldError extends HttpError {

@@ -11,8 +11,7 @@ import { parseBody } from '../../middleware/validate';
 import { currentUser } from '../../request-state';
 import { RunnerRepository, toRunnerDto } from './runner.repository';
 import { RunnerJobService } from './runner-job.service';
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+import { UUID } from '../../ids';
 
 const requireAdmin: RequestHandler = (req, _res, next) => {
   if (!currentUser(req).isAdmin) throw new HttpError(403, ErrorCode.RoleTooLow, 'Only the instance admin manages runners.');

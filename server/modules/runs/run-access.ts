@@ -5,8 +5,7 @@ import { notFound, roleTooLow } from '../../http-error';
 import { currentBench, currentUser } from '../../request-state';
 import type { Run } from './run.entity';
 import { canControlRun, RunRepository } from './run.repository';
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+import { UUID } from '../../ids';
 
 /** The run named by `:runId` if it belongs to the bench of the request; 404 otherwise. */
 export async function loadRun(ctx: AppContext, req: Request): Promise<Run> {

@@ -30,8 +30,7 @@ import { loadRun, requireControl } from './run-access';
 import type { Run } from './run.entity';
 import { RunRepository } from './run.repository';
 import { corpusSplit, FAMILY_LABELS } from './run-settings';
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+import { UUID } from '../../ids';
 
 function refuseIfArchived(run: Run): void {
   if (run.archived) {
