@@ -26,6 +26,35 @@ function group(rows: RowFigures[], corpus: string, name: string, pick: (r: RowFi
 }
 
 const held = (r: RowFigures) => r.heldOutBitsPerChar;
+
+/**
+ * Paired difference `b − a` in held-out bits/char on the same words (same corpus and split seed), with its standard
+ * error from the per-word differences: Σ(d)/Σ(chars) ± sd(d)/√n / mean(chars). Null without per-word figures.
+ */
+export function pairedDifference(a: RowFigures, b: RowFigures): { diff: number; se: number; words: number } | null {
+  const pa = a.perWord;
+  const pb = b.perWord;
+  if (!pa || !pb || pa.bits.length !== pb.bits.length || pa.bits.length < 2) return null;
+  const n = pa.bits.length;
+  const d = pb.bits.map((x, i) => x - (pa.bits[i] as number));
+  const meanD = d.reduce((s, x) => s + x, 0) / n;
+  const sd = Math.sqrt(d.reduce((s, x) => s + (x - meanD) ** 2, 0) / (n - 1));
+  const meanChars = pa.characters.reduce((s, x) => s + x, 0) / n;
+  return { diff: meanD / meanChars, se: sd / Math.sqrt(n) / meanChars, words: n };
+}
+
+const rowOf = (rows: RowFigures[], corpus: string, group: string, seed: number) => rows.find((r) => r.corpus === corpus && r.group === group && r.seed === seed);
+
+/** "paired per-word difference on the same N test words: +x ± se" for `b − a` of each seed both groups have. */
+function pairedText(rows: RowFigures[], corpus: string, a: string, b: string): string {
+  const parts = [1, 2, 3].flatMap((seed) => {
+    const ra = rowOf(rows, corpus, a, seed);
+    const rb = rowOf(rows, corpus, b, seed);
+    const p = ra && rb ? pairedDifference(ra, rb) : null;
+    return p ? [`seed ${seed}: ${p.diff >= 0 ? '+' : ''}${f3(p.diff)} ± ${f3(p.se)}`] : [];
+  });
+  return parts.length === 0 ? '' : `; paired per-word difference ${b} − ${a} on the same test words, ± standard error: ${parts.join(', ')}`;
+}
 const show = (g: GroupStats) => (g.n > 1 ? `${f3(g.mean)} (range ${f3(g.spread)} over ${g.n} seeds)` : f3(g.mean));
 
 /** "Better" = lower cost; a difference inside the seed spread of SSM-8 counts as "partly". */
@@ -37,7 +66,8 @@ function ablation(rows: RowFigures[], id: string, claim: string, variant: string
   const verdict: Verdict = diff > Math.max(base.spread, 0) ? 'yes' : diff > 0 ? 'partly' : 'no';
   return {
     id, claim, verdict,
-    measured: `names held-out bits/char: SSM-8 ${show(base)}, ${variantLabel} ${f3(other.mean)} (difference ${diff >= 0 ? '+' : ''}${f3(diff)})`,
+    measured: `names held-out bits/char: SSM-8 ${show(base)}, ${variantLabel} ${f3(other.mean)} (difference ${diff >= 0 ? '+' : ''}${f3(diff)})` +
+      pairedText(rows, 'names', 'SSM-8', variant),
   };
 }
 
@@ -53,7 +83,8 @@ export function checkClaims(rows: RowFigures[]): Claim[] {
     claims.push({
       id: 'a', claim: 'The stochastic model is on par with or better than a teacher-forced GRU of the same state size',
       measured: `SUBTLEX top-20k sequence cross entropy (bits/word): SSM-8 ${show(ssmCe)} (estimate: an upper bound in expectation) vs ` +
-        `GRU-8 ${show(gruCe)} (exact); names held-out bits/char: SSM-8 ${show(ssmNames)} vs GRU-8 ${show(gruNames)} (target: within 0.05)`,
+        `GRU-8 ${show(gruCe)} (exact); names held-out bits/char: SSM-8 ${show(ssmNames)} vs GRU-8 ${show(gruNames)} (target: within 0.05)` +
+        pairedText(rows, 'names', 'GRU-8', 'SSM-8'),
       verdict: ceOk && namesOk ? 'yes' : ceOk || namesOk ? 'partly' : 'no',
     });
   } else {

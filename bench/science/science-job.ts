@@ -4,7 +4,7 @@
  * checkpoint with the CLI's `runEvaluation` on the test split. Writes the row's figures as JSON.
  * Usage (by science.ts): tsx bench/science/science-job.ts <job.json>
  */
-import { readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { parseEvaluateArgs } from '../../shared/cli/evaluate-options';
 import { runEvaluation } from '../../shared/cli/evaluate-run';
@@ -39,6 +39,14 @@ export interface RowFigures {
   heldOutWords: number;
   /** SSM only: standard deviation of bits/char over the repeats of the tight estimate. */
   repeatStdBitsPerChar: number | null;
+  /** Standard error of the held-out bits/char from the per-word spread (and, for the SSM, the repeats). */
+  heldOutStandardErrorBitsPerChar: number | null;
+  /**
+   * Per scored word, in the evaluation's order (the same words for every row of a corpus and split seed): the
+   * model's bits and the word's characters (end-of-word counted). For paired differences between rows; kept
+   * out of science.json (bench/results/science-per-word.json holds the bits, never the words).
+   */
+  perWord?: { bits: number[]; characters: number[] };
   exact: boolean;
   /** H(p_data, p_model) in bits per word against the whole corpus; for the SSM the lower of its two estimates. */
   crossEntropyBits: number;
@@ -67,13 +75,16 @@ export async function runJob(job: JobInput): Promise<RowFigures> {
     trained.checkpointPath, '--corpus', job.corpusFile, '--held-out', 'test', '--order', '3',
     '-k', String(e.tightK), '--repeats', String(e.repeats), '--trajectories', String(e.trajectories), '--ce-k', String(e.crossEntropyK),
     '--draws', String(e.noiseDraws), '--detail-words', String(e.detailWords), '--samples', String(e.samples),
-    '--max-held-out', String(e.maxHeldOut), '--seed', '1', ...(job.gruBaseline && spec.model === 'ssm' ? ['--baseline', job.gruBaseline] : []),
+    '--max-held-out', String(e.maxHeldOut), '--seed', '1', '--per-word', join(job.outDir, 'per-word.jsonl'),
+    ...(job.gruBaseline && spec.model === 'ssm' ? ['--baseline', job.gruBaseline] : []),
   ]);
   if (!evalOptions) throw new Error('Internal error: no evaluation options.');
   const t0 = performance.now();
   const { output } = await runEvaluation(evalOptions);
   const evaluateSeconds = (performance.now() - t0) / 1000;
+  const perWord = readPerWord(join(job.outDir, 'per-word.jsonl'));
   const base = {
+    perWord,
     label: spec.label, group: spec.group, corpus: spec.corpus, model: spec.model, seed: spec.seed,
     parameterCount: trained.metrics.parameterCount, steps: trained.metrics.steps, trainSeconds: trained.metrics.seconds, evaluateSeconds,
   };
@@ -83,7 +94,7 @@ export async function runJob(job: JobInput): Promise<RowFigures> {
     const iwae = r.crossEntropy.iwae?.crossEntropyBits ?? null;
     return {
       ...base, heldOutBitsPerChar: r.tight.bitsPerChar, heldOutBitsPerWord: r.tight.bitsPerWord, heldOutWords: countWords(r),
-      repeatStdBitsPerChar: r.tight.stdBitsPerChar, exact: false,
+      repeatStdBitsPerChar: r.tight.stdBitsPerChar, heldOutStandardErrorBitsPerChar: r.tight.standardError.bitsPerChar.total, exact: false,
       crossEntropyBits: iwae === null ? shared : Math.min(shared, iwae), crossEntropyEstimates: { shared, iwae },
       dataEntropyBits: r.crossEntropy.shared.dataEntropyBits,
       observationEntropyBits: r.observationEntropy.meanBits, gruPredictiveEntropyBits: r.baselines.gru?.predictiveEntropy.meanBits ?? null,
@@ -93,10 +104,18 @@ export async function runJob(job: JobInput): Promise<RowFigures> {
   const r = output.result as ExactEvaluation;
   return {
     ...base, heldOutBitsPerChar: r.heldOut.bitsPerChar, heldOutBitsPerWord: r.heldOut.bitsPerWord, heldOutWords: r.heldOut.words,
-    repeatStdBitsPerChar: null, exact: true, crossEntropyBits: r.crossEntropy.crossEntropyBits, crossEntropyEstimates: null,
+    repeatStdBitsPerChar: null, heldOutStandardErrorBitsPerChar: r.heldOut.standardError?.bitsPerChar ?? null, exact: true, crossEntropyBits: r.crossEntropy.crossEntropyBits, crossEntropyEstimates: null,
     dataEntropyBits: r.crossEntropy.dataEntropyBits, observationEntropyBits: r.predictiveEntropy?.meanBits ?? null,
     gruPredictiveEntropyBits: null, meanNoiseInformationBits: null, noiseInformationPerStep: null,
   };
+}
+
+/** The evaluation's per-word file (`--per-word`): bits and characters per scored word, rounded to 1e-4 bits. */
+function readPerWord(path: string): { bits: number[]; characters: number[] } | undefined {
+  if (!existsSync(path)) return undefined;
+  const lines = readFileSync(path, 'utf8').split('\n').filter((l) => l.trim() !== '');
+  const rows = lines.map((l) => JSON.parse(l) as { bits: number; characters: number });
+  return { bits: rows.map((r) => Number(r.bits.toFixed(4))), characters: rows.map((r) => r.characters) };
 }
 
 /** Held-out words of the SSM's tight estimate (the baselines were scored on the same words). */

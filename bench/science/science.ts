@@ -94,7 +94,10 @@ const ctx = {
   loadBefore, loadAfter: loadavg(), wallSeconds: (performance.now() - started) / 1000, budget, corpora: withSplits,
 };
 mkdirSync(join(root, 'bench', 'results'), { recursive: true });
-writeFileSync(join(root, 'bench', 'results', 'science.json'), `${JSON.stringify({ ...ctx, claims, rows }, null, 1)}\n`);
+writeFileSync(join(root, 'bench', 'results', 'science.json'), `${JSON.stringify({ ...ctx, claims, rows: rows.map(({ perWord: _, ...r }) => r) }, null, 1)}\n`);
+// Per-word bits of every row (numbers only: the words, some from a list that may not be redistributed, stay out).
+writeFileSync(join(root, 'bench', 'results', 'science-per-word.json'),
+  `${JSON.stringify(rows.map((r) => ({ corpus: r.corpus, label: r.label, seed: r.seed, ...(r.perWord ?? { bits: [], characters: [] }) })))}\n`);
 // The training-recipe study (written by hand from bench/science/recipe-table.ts) is kept below the benchmark's part.
 const resultsFile = join(root, 'docs', 'RESULTS.md');
 const previous = existsSync(resultsFile) ? readFileSync(resultsFile, 'utf8') : '';
