@@ -26,8 +26,9 @@ export interface CpuPoolSettings {
   queueLimit: number;
 }
 
+/** Before `configureCpuPool` (scripts and tests that use the pool directly): the server's defaults, cores − 1 threads. */
 export function defaultPoolSettings(): CpuPoolSettings {
-  return { threads: Math.max(1, availableParallelism()), queueLimit: 200 };
+  return { threads: Math.max(1, availableParallelism() - 1), queueLimit: 200 };
 }
 
 let settings: CpuPoolSettings = defaultPoolSettings();
