@@ -92,4 +92,5 @@ benchRouteTable.push(
   { method: 'get', path: () => `/runs/${madeUpId}/checkpoints/${madeUpId}/evaluation-requests`, minRole: 'viewer', allowedStatus: 404 },
   { method: 'post', path: () => `/runs/${madeUpId}/checkpoints/${madeUpId}/evaluation-requests`, minRole: 'member', body: { settings: { K: 64 } } },
   { method: 'get', path: () => `/evaluation-requests/${madeUpId}`, minRole: 'viewer', allowedStatus: 404 },
+  { method: 'delete', path: () => `/evaluation-requests/${madeUpId}`, minRole: 'member', allowedStatus: 404 },
 );

@@ -168,6 +168,25 @@ export class EvaluationJobService {
     }
   }
 
+  /**
+   * Withdraws a request nobody computes (waiting, or failed and kept for its reason): the row goes, and so does its
+   * queue job. A running request is refused (409: its runner is computing it), as is a finished one (its figures
+   * are stored: delete the evaluation instead).
+   */
+  async withdraw(request: EvaluationRequest): Promise<void> {
+    if (request.status === 'running') {
+      throw conflict(ErrorCode.Conflict, `The runner "${request.runner?.name ?? 'runner'}" is computing this evaluation already; its figures are stored when it is done, and you can delete them then.`);
+    }
+    if (request.status === 'finished') {
+      throw conflict(ErrorCode.Conflict, 'This evaluation is done and its figures are stored; delete the stored evaluation instead.');
+    }
+    // Only if it still waits or failed: a runner may have claimed it since it was read.
+    const gone = await this.em.nativeDelete(EvaluationRequest, { id: request.id, status: { $in: ['waiting', 'failed'] } });
+    if (gone === 0) throw conflict(ErrorCode.Conflict, 'A runner has just started this evaluation; its figures are stored when it is done.');
+    this.em.getUnitOfWork().unsetIdentity(request);
+    await this.ctx.runQueue.withdraw(request.id).catch(this.ctx.logError);
+  }
+
   /** Requests whose runner stopped answering (lease ran out) wait again, with a reason that says so; returns how many. */
   async releaseExpired(): Promise<number> {
     const now = this.ctx.clock.now();

@@ -170,4 +170,31 @@ describe('evaluation requests on the embedded back-end', () => {
     expect((await runnerApi(first.token).claim()).status).toBe(401);
     expect((await runnerApi(second.token).claim()).body.requestId).toBe(third.id);
   });
+
+  it('withdraws a request that waits or failed; refuses one a runner computes or that is done', async () => {
+    const byId = (id: string) => api().delete(`/api/benches/${f.benchId}/evaluation-requests/${id}`);
+    const all = (await api().get(requestsUrl()).set(bearer(f.tokens.viewer))).body as EvaluationRequestDto[];
+    const running = all.find((r) => r.status === 'running')!;
+    const failed = all.find((r) => r.status === 'failed')!;
+    const finished = all.find((r) => r.status === 'finished')!;
+    const waiting = (await api().post(requestsUrl()).set(bearer(f.tokens.member)).send({ settings: { K: 8, seed: 8 } })).body as EvaluationRequestDto;
+    const rows = await countRows(t, 'evaluation_requests');
+
+    expect((await byId(waiting.id).set(bearer(f.tokens.viewer))).status).toBe(403);
+    const busy = await byId(running.id).set(bearer(f.tokens.member));
+    expect(busy.status).toBe(409);
+    expect(busy.body.error.message).toMatch(/is computing this evaluation already/);
+    const done = await byId(finished.id).set(bearer(f.tokens.member));
+    expect(done.status).toBe(409);
+    expect(done.body.error.message).toMatch(/delete the stored evaluation instead/);
+    expect(await countRows(t, 'evaluation_requests')).toBe(rows);
+
+    expect((await byId(waiting.id).set(bearer(f.tokens.member))).status).toBe(204);
+    expect((await byId(failed.id).set(bearer(f.tokens.member))).status).toBe(204);
+    expect(await countRows(t, 'evaluation_requests')).toBe(rows - 2);
+    expect((await api().get(`/api/benches/${f.benchId}/evaluation-requests/${waiting.id}`).set(bearer(f.tokens.viewer))).status).toBe(404);
+    expect((await byId(waiting.id).set(bearer(f.tokens.member))).status).toBe(404);
+    // No runner gets the withdrawn request.
+    expect((await runnerApi(tokenB).claim()).status).toBe(204);
+  });
 });

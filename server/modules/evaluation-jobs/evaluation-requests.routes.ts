@@ -2,7 +2,7 @@
  * Evaluations sent to runners, seen from the bench. Under /api/benches/:benchId/runs:
  * `/:runId/checkpoints/:checkpointId/evaluation-requests` POST ask (member and up, who may control the run),
  * GET list (viewer). Under /api/benches/:benchId/evaluation-requests: `/:requestId` GET one (viewer; the page
- * polls it). Asking twice for the same checkpoint and settings returns the request that waits or runs (200); a
+ * polls it), DELETE withdraws one that waits or failed (who may control its run; 409 while a runner computes it). Asking twice for the same checkpoint and settings returns the request that waits or runs (200); a
  * stored evaluation with those settings is a 409 EVALUATION_EXISTS that carries it, as for a tab's figures.
  */
 import { Router } from 'express';
@@ -70,6 +70,14 @@ export function benchEvaluationRequestRoutes(ctx: AppContext): Router {
     const found = await new EvaluationJobService(ctx).find(currentBench(req).bench, String(req.params['requestId'] ?? ''));
     if (!found) throw notFound('This evaluation request');
     res.json(toEvaluationRequestDto(found));
+  });
+  router.delete('/:requestId', requireRole('member'), async (req, res) => {
+    const jobs = new EvaluationJobService(ctx);
+    const found = await jobs.find(currentBench(req).bench, String(req.params['requestId'] ?? ''));
+    if (!found) throw notFound('This evaluation request');
+    requireControl(req, found.run);
+    await jobs.withdraw(found);
+    res.status(204).end();
   });
   return router;
 }

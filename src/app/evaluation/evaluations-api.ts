@@ -50,4 +50,9 @@ export class EvaluationsApi {
   requestState(benchId: string, requestId: string): Promise<EvaluationRequestDto> {
     return firstValueFrom(this.http.get<EvaluationRequestDto>(`/api/benches/${enc(benchId)}/evaluation-requests/${enc(requestId)}`));
   }
+
+  /** Withdraws a request that waits for a runner or failed (409 while a runner computes it). */
+  withdrawRequest(benchId: string, requestId: string): Promise<void> {
+    return firstValueFrom(this.http.delete<void>(`/api/benches/${enc(benchId)}/evaluation-requests/${enc(requestId)}`));
+  }
 }

@@ -63,6 +63,7 @@ async function setUp(stored: EvaluationDto[] = [], hang = false, onlineRunners =
     sent = requestDto('waiting', { settings: { ...sent.settings, ...settings } as EvaluationDto['settings'] });
     return sent;
   });
+  const withdrawRequest = vi.fn(async () => undefined);
   const create = vi.fn(async (_b: string, _r: string, _c: string, body: CreateEvaluationRequest) => {
     const e = dto(body.settings as EvaluationDto['settings'], `e${saved.length + 1}`);
     saved.unshift(e);
@@ -89,7 +90,7 @@ async function setUp(stored: EvaluationDto[] = [], hang = false, onlineRunners =
         provide: EvaluationsApi,
         useValue: {
           list: async () => saved.slice(), get: async (_b: string, id: string) => saved.find((e) => e.id === id)!, create,
-          requests: async () => [], request: sendRequest, requestState: async () => {
+          requests: async () => [], request: sendRequest, withdrawRequest, requestState: async () => {
             const next = { ...states.shift()!, settings: sent.settings };
             if (next.status === 'finished') saved.unshift(dto(next.settings, next.evaluationId!));
             return next;
@@ -112,7 +113,7 @@ async function setUp(stored: EvaluationDto[] = [], hang = false, onlineRunners =
   // The page loads the run, its checkpoints and the stored evaluations before it shows the form.
   await vi.waitFor(() => expect((fixture.nativeElement as HTMLElement).querySelector('nw-evaluation-settings')).not.toBeNull());
   await fixture.whenStable();
-  return { fixture, loader, evaluate, create, close, sendRequest };
+  return { fixture, loader, evaluate, create, close, sendRequest, withdrawRequest };
 }
 
 type Setup = Awaited<ReturnType<typeof setUp>>;
@@ -198,6 +199,19 @@ describe('Evaluation page on runners', { timeout: 30_000 }, () => {
     expect(text(fixture, 'runner-evaluation')).toBe('');
     expect(evaluate).not.toHaveBeenCalled();
     expect(create).not.toHaveBeenCalled();
+  });
+
+  it('withdraws a runner evaluation that still waits: the request goes, the page says so and stops following it', async () => {
+    const { fixture, loader, sendRequest, withdrawRequest } = await setUp([], false, 1, [requestDto('waiting'), requestDto('waiting')]);
+    await vi.waitFor(() => expect(text(fixture, 'placement-explanation')).toMatch(/A runner computes the figures/));
+    await choose(loader, null, null);
+    await vi.waitFor(() => expect(sendRequest).toHaveBeenCalledTimes(1));
+    await fixture.whenStable();
+    await (await loader.getHarness(MatButtonHarness.with({ selector: '[data-testid=withdraw-request]' }))).click();
+    await vi.waitFor(() => expect(withdrawRequest).toHaveBeenCalledWith(BENCH, 'q1'));
+    await fixture.whenStable();
+    expect(text(fixture, 'runner-evaluation')).toBe('');
+    expect(text(fixture, 'evaluation-notice')).toMatch(/withdrawn; no runner will compute it/);
   });
 
   it('keeps the evaluation in the tab while no runner is online', async () => {

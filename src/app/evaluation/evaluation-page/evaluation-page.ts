@@ -195,10 +195,31 @@ export class EvaluationPage {
     this.pollTimer = setTimeout(() => {
       this.pollTimer = null;
       this.evaluations.requestState(this.benchId(), request.id).then((next) => this.follow(next), (error: unknown) => {
+        if (error instanceof ApiError && error.status === 404) {
+          // Withdrawn meanwhile (on another page): nothing to follow.
+          this.remote.set(null);
+          this.notice.set('The evaluation request was withdrawn; no runner will compute it.');
+          return;
+        }
         this.problem.set(problemText(error));
         this.pollTimer = setTimeout(() => this.follow(request), 5000);
       });
     }, 2000);
+  }
+
+  /** Withdraws the request shown (waiting, or failed and kept for its reason). */
+  protected async withdraw(): Promise<void> {
+    const q = this.remote();
+    if (!q) return;
+    this.stopPolling();
+    try {
+      await this.evaluations.withdrawRequest(this.benchId(), q.id);
+      this.remote.set(null);
+      this.notice.set(q.status === 'failed' ? 'The failed runner evaluation was removed.' : 'The evaluation request was withdrawn; no runner will compute it.');
+    } catch (error) {
+      this.problem.set(problemText(error));
+      this.follow(q);
+    }
   }
 
   private async landed(request: EvaluationRequestDto): Promise<void> {
