@@ -9,6 +9,7 @@
  *  - `runners`: the server queues it and a runner trains it; the tab only watches (server-sent events).
  */
 import { z } from 'zod';
+import type { EvaluationStage } from './evaluation-jobs';
 import { safeText } from './safe-text';
 
 export const RUN_PLACEMENTS = ['tab', 'runners'] as const;
@@ -55,6 +56,8 @@ export interface RunnerDto {
   threads: number | null;
   /** Jobs it holds now. */
   currentJobs: { runId: string; runName: string; benchId: string; benchName: string; step: number; steps: number; stepsPerSecond: number | null }[];
+  /** Evaluations it computes now (sent to runners from the evaluation page), with the stage it reported last. */
+  currentEvaluations: { requestId: string; runId: string; runName: string; benchId: string; benchName: string; checkpointStep: number; stage: EvaluationStage | null }[];
   /** Training steps per second summed over its current jobs (last heartbeat). */
   stepsPerSecond: number | null;
   jobsDone: number;

@@ -9,6 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ErrorCode } from '../../../shared/api/errors';
 import type { EvaluationRequestDto, RunnerEvaluationJob } from '../../../shared/api/evaluation-jobs';
 import type { EvaluationDto } from '../../../shared/api/evaluations';
+import type { RunnersOverview } from '../../../shared/api/runners';
 import type { CheckpointDto, RunDto, TrainingSet } from '../../../shared/api/runs';
 import { decodeCheckpoint } from '../../../shared/model/checkpoint';
 import { bearer, countRows, createBenchFixture, createTestApp, type BenchFixture, type TestApp } from '../../testing/test-app';
@@ -110,6 +111,14 @@ describe('evaluation requests on the embedded back-end', () => {
 
     expect((await runnerApi(tokenA).progress(asked.id, { done: 2, total: 9, next: 'noise draws' })).status).toBe(200);
     expect(await readRequest(asked.id)).toMatchObject({ status: 'running', runnerName: 'Attic box', stage: { done: 2, total: 9, next: 'noise draws' } });
+    // The Runners page lists it as the runner's current job; the other runner is idle.
+    const overview = (await api().get('/api/runners').set(bearer(f.tokens.admin))).body as RunnersOverview;
+    const byName = (name: string) => overview.runners.find((r) => r.name === name)!;
+    expect(byName('Attic box').currentEvaluations).toEqual([{
+      requestId: asked.id, runId: run.id, runName: 'Member SSM', benchId: f.benchId, benchName: expect.any(String), checkpointStep: 120,
+      stage: { done: 2, total: 9, next: 'noise draws' },
+    }]);
+    expect(byName('Shed box').currentEvaluations).toEqual([]);
   });
 
   it('refuses bad figures with a 422 and stores nothing; stores good ones as a tab would', async () => {

@@ -1,6 +1,7 @@
 import type { EntityManager } from '@mikro-orm/core';
 import { RUNNER_LEASE_SECONDS, RUNNER_ONLINE_SECONDS } from '../../../shared/api/runner-jobs';
 import type { RunnerDto } from '../../../shared/api/runners';
+import { EvaluationRequest } from '../evaluation-jobs/evaluation-request.entity';
 import { Run } from '../runs/run.entity';
 import { Runner, type RunnerKind } from './runner.entity';
 import { hashRunnerToken, newRunnerToken } from './runner-tokens';
@@ -16,7 +17,7 @@ export function leaseUntil(now: Date): Date {
   return new Date(now.getTime() + RUNNER_LEASE_SECONDS * 1000);
 }
 
-export function toRunnerDto(runner: Runner, held: readonly Run[], now: Date): RunnerDto {
+export function toRunnerDto(runner: Runner, held: readonly Run[], now: Date, evaluating: readonly EvaluationRequest[] = []): RunnerDto {
   const jobs = held.map((run) => ({
     runId: run.id,
     runName: run.name,
@@ -36,6 +37,9 @@ export function toRunnerDto(runner: Runner, held: readonly Run[], now: Date): Ru
     online: isOnline(runner, now),
     threads: runner.threads,
     currentJobs: jobs,
+    currentEvaluations: evaluating.map((q) => ({
+      requestId: q.id, runId: q.run.id, runName: q.run.name, benchId: q.bench.id, benchName: q.bench.name, checkpointStep: q.checkpointStep, stage: q.stage,
+    })),
     stepsPerSecond: runner.stepsPerSecond,
     jobsDone: runner.jobsDone,
   };
@@ -71,6 +75,12 @@ export class RunnerRepository {
 
   listAll(): Promise<Runner[]> {
     return this.em.find(Runner, {}, { orderBy: { revokedAt: 'asc', createdAt: 'asc', id: 'asc' } });
+  }
+
+  /** Evaluation requests runners compute now (lease not expired), with their run and bench. */
+  heldEvaluations(now: Date): Promise<EvaluationRequest[]> {
+    return this.em.find(EvaluationRequest, { status: 'running', runner: { $ne: null }, leaseExpiresAt: { $gt: now } },
+      { populate: ['run', 'bench', 'runner'], orderBy: { createdAt: 'asc', id: 'asc' } });
   }
 
   /** Runs runners hold now (lease not expired), with their bench. */

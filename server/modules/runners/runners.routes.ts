@@ -28,7 +28,9 @@ export function runnerAdminRoutes(ctx: AppContext): Router {
     const now = ctx.clock.now();
     const repo = runners();
     const held = await repo.heldRuns(now);
-    const list = (await repo.listAll()).map((r) => toRunnerDto(r, held.filter((run) => run.runner?.id === r.id), now));
+    const evaluating = await repo.heldEvaluations(now);
+    const list = (await repo.listAll()).map((r) => toRunnerDto(r, held.filter((run) => run.runner?.id === r.id), now,
+      evaluating.filter((q) => q.runner?.id === r.id)));
     const body: RunnersOverview = { backend: ctx.runQueue.backend, runners: list, queue: await repo.queueCounts() };
     res.json(body);
   });

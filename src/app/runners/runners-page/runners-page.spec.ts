@@ -15,7 +15,7 @@ import { runnerCommand } from './new-runner-dialog';
 const NOW = Date.parse('2026-12-05T09:00:00Z');
 const runner = (over: Partial<RunnerDto>): RunnerDto => ({
   id: 'r-emb', name: 'This server', kind: 'embedded', createdAt: '2026-12-01T00:00:00Z', revokedAt: null,
-  lastHeartbeatAt: new Date(NOW - 12_000).toISOString(), online: true, threads: 1, currentJobs: [], stepsPerSecond: null, jobsDone: 0, ...over,
+  lastHeartbeatAt: new Date(NOW - 12_000).toISOString(), online: true, threads: 1, currentJobs: [], currentEvaluations: [], stepsPerSecond: null, jobsDone: 0, ...over,
 });
 const OVERVIEW: RunnersOverview = {
   backend: 'embedded',
@@ -53,6 +53,15 @@ describe('RunnersPage', { timeout: 30_000 }, () => {
     expect(text('queue-waiting')).toBe('3');
     expect(text('queue-active')).toBe('1');
     expect(text('backend')).toMatch(/^Embedded/);
+  });
+
+  it('shows an evaluation a runner computes as one of its current jobs, with its stage', async () => {
+    const evaluating = runner({
+      currentEvaluations: [{ requestId: 'q1', runId: 'run-2', runName: 'Tea model', benchId: 'b1', benchName: 'Lab', checkpointStep: 300, stage: { done: 2, total: 5, next: 'noise draws' } }],
+    });
+    const { loader } = await setUp({ overview: vi.fn(async () => ({ ...OVERVIEW, runners: [evaluating] })) });
+    const rows = await (await loader.getHarness(MatTableHarness)).getCellTextByIndex();
+    expect(rows[0]![4]).toMatch(/^evaluating\s*Tea model\s*step 300 on Lab\s*noise draws \(2 of 5\)$/);
   });
 
   it('creates a token and shows it once with the command line', async () => {
