@@ -104,6 +104,8 @@ export async function trainJob(job: RunnerJob, api: RunnerApi, io: JobIo): Promi
 /** The state of one job between the loop's hooks and the server. */
 class JobSession {
   lost = false;
+  /** The step of the last checkpoint the server took (a pause or stop right after an autosave saves nothing new). */
+  private savedStep: number | null = null;
   shuttingDown = false;
   private serverAction: LoopControl = 'continue';
   private points: CurvePoint[] = [];
@@ -172,10 +174,13 @@ class JobSession {
     if (this.lost) throw new RunnerApiError(409, 'RUN_NOT_HELD', 'The server gave the run to another runner.');
     await this.drain(); // every point up to this step is stored before the checkpoint exists
     if (this.lost) throw new RunnerApiError(409, 'RUN_NOT_HELD', 'The server gave the run to another runner.');
+    // A pause, stop or end right after an autosave of this very step stores no second copy of these weights (as the tab).
+    if ((reason === 'pause' || reason === 'stop' || reason === 'end') && this.savedStep === this.engine.stepCount) return;
     const bytes = encodeCheckpoint(this.engine.checkpoint());
     const bound = this.last?.evaluation?.validationBitsPerChar ?? (this.last && this.last.totalSteps > 0 ? this.last.trainBitsPerChar : null);
     try {
       await this.api.uploadCheckpoint(this.job.runId, bytes, reason === 'auto' ? 'auto' : 'stop', bound ?? null);
+      this.savedStep = this.engine.stepCount;
     } catch (e) {
       if (isLost(e)) this.lost = true;
       if (reason !== 'auto' || this.lost) throw e;
