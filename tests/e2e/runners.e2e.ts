@@ -3,7 +3,8 @@
  * page; a grid of 4 small GRU runs is sent to the runners from the grid form; the page is closed and the runs keep
  * training (steps grow on the server while no tab is open); the reopened page shows the progress; the run list follows
  * the steps from the bench's event stream; Stop on the page of
- * a training run stops the runner's job (status stopped, no runner holds the run any more, its steps stay put).
+ * a training run stops the runner's job (status stopped, no runner holds the run any more, its steps stay put); last,
+ * that run's checkpoint is evaluated on the runners and the evaluation page shows the figures a runner stored.
  */
 import assert from 'node:assert/strict';
 import { after, before, test } from 'node:test';
@@ -163,6 +164,23 @@ test('a grid sent to the runners trains with the page closed, and Stop on the ru
         });
       }
     }
+
+    // The stopped run's last checkpoint, evaluated on the runners (their threads are free now): the page follows
+    // the request and shows the figures a runner stored.
+    const [checkpoint] = await api<{ id: string; step: number }[]>(`/benches/${benchId}/runs/${runId}/checkpoints`, token);
+    await page.goto(`/benches/${benchId}/runs/${runId}`);
+    await page.getByRole('link', { name: `Evaluate the checkpoint of step ${checkpoint!.step}` }).click();
+    await page.waitForURL(`**/checkpoints/${checkpoint!.id}/evaluation`);
+    await page.getByRole('radio', { name: 'Send to runners' }).check();
+    await page.getByLabel('Samples', { exact: true }).fill('100');
+    await page.getByTestId('evaluate').click();
+    await page.getByTestId('runner-evaluation').waitFor({ timeout: 15_000 });
+    await page.getByTestId('figures').waitFor({ timeout: 120_000 });
+    assert.match((await page.getByTestId('evaluation-notice').textContent()) ?? '', /A runner stored these figures/);
+    const stored = await api<{ items: { id: string; checkpoint: { id: string } }[] }>(`/benches/${benchId}/evaluations?runId=${runId}`, token);
+    assert.equal(stored.items.filter((e) => e.checkpoint.id === checkpoint!.id).length, 1, 'the runner stored one evaluation of that checkpoint');
+    await settled(page);
+    await screenshot(page, 'runners-08-evaluation-on-runners');
     assert.deepEqual(person.problems.filter((p) => !/favicon/.test(p)), [], 'no errors in the page');
   } catch (error) {
     if (!page.isClosed()) await screenshot(page, 'runners-failure');
