@@ -6,16 +6,14 @@
  * stored evaluation with those settings is a 409 EVALUATION_EXISTS that carries it, as for a tab's figures.
  */
 import { Router } from 'express';
-import { ErrorCode } from '../../../shared/api/errors';
 import { createEvaluationRequestSchema } from '../../../shared/api/evaluation-jobs';
-import type { EvaluationExistsBody } from '../../../shared/api/evaluations';
 import type { AppContext } from '../../app-context';
 import { notFound } from '../../http-error';
 import { requireRole } from '../../middleware/bench-access';
 import { parseBody } from '../../middleware/validate';
 import { currentBench, currentUser } from '../../request-state';
-import { checkBaselineRun } from '../evaluations/evaluation-store';
-import { EvaluationRepository, toEvaluationDto } from '../evaluations/evaluation.repository';
+import { checkBaselineRun, evaluationExistsBody } from '../evaluations/evaluation-store';
+import { EvaluationRepository } from '../evaluations/evaluation.repository';
 import { loadCheckpoint } from '../evaluations/evaluations.routes';
 import { loadRun, requireControl } from '../runs/run-access';
 import { EvaluationJobService, toEvaluationRequestDto } from './evaluation-job.service';
@@ -41,14 +39,7 @@ export function checkpointEvaluationRequestRoutes(ctx: AppContext): Router {
     await checkBaselineRun(ctx.orm.em, bench, settings);
     const stored = await new EvaluationRepository(ctx.orm.em).findSame(checkpoint, settings);
     if (stored) {
-      const answer: EvaluationExistsBody = {
-        error: {
-          code: ErrorCode.EvaluationExists as 'EVALUATION_EXISTS',
-          message: `This checkpoint was already evaluated with the same settings (step ${checkpoint.step}); the stored figures are in "existing".`,
-          existing: toEvaluationDto(stored),
-        },
-      };
-      res.status(409).json(answer);
+      res.status(409).json(evaluationExistsBody(checkpoint.step, stored));
       return;
     }
     const pending = await jobs().pending(checkpoint, settings);

@@ -5,7 +5,8 @@
  * settings (the stored one is returned instead). Nothing is written when a check fails.
  */
 import type { EntityManager } from '@mikro-orm/core';
-import type { EvaluationResults, StoredEvaluationSettings } from '../../../shared/api/evaluations';
+import { ErrorCode } from '../../../shared/api/errors';
+import type { EvaluationExistsBody, EvaluationResults, StoredEvaluationSettings } from '../../../shared/api/evaluations';
 import { validationFailed } from '../../http-error';
 import { ActivityRepository } from '../activity/activity.repository';
 import type { Bench } from '../benches/bench.entity';
@@ -13,7 +14,7 @@ import type { Checkpoint } from '../runs/checkpoint.entity';
 import { Run } from '../runs/run.entity';
 import type { User } from '../users/user.entity';
 import type { Evaluation } from './evaluation.entity';
-import { EvaluationRepository } from './evaluation.repository';
+import { EvaluationRepository, toEvaluationDto } from './evaluation.repository';
 
 export interface EvaluationToStore {
   bench: Bench;
@@ -53,4 +54,15 @@ export async function storeEvaluation(em: EntityManager, e: EvaluationToStore): 
     `${who} stored an evaluation of "${e.run.name}" at step ${e.checkpoint.step} (K = ${e.settings.K})${e.note ? ` ${e.note}` : ''}.`, e.at);
   await em.flush();
   return { evaluation, existing: false };
+}
+
+/** The 409 answer when the checkpoint was already evaluated with the same settings: the stored figures in `existing`. */
+export function evaluationExistsBody(checkpointStep: number, stored: Evaluation): EvaluationExistsBody {
+  return {
+    error: {
+      code: ErrorCode.EvaluationExists as 'EVALUATION_EXISTS',
+      message: `This checkpoint was already evaluated with the same settings (step ${checkpointStep}); the stored figures are in "existing".`,
+      existing: toEvaluationDto(stored),
+    },
+  };
 }

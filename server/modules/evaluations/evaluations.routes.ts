@@ -7,8 +7,7 @@
  * returns the stored evaluation, so a page never computes the same figures again.
  */
 import { Router, type Request } from 'express';
-import { ErrorCode } from '../../../shared/api/errors';
-import { createEvaluationSchema, listEvaluationsQuerySchema, type EvaluationExistsBody, type EvaluationResults } from '../../../shared/api/evaluations';
+import { createEvaluationSchema, listEvaluationsQuerySchema, type EvaluationResults } from '../../../shared/api/evaluations';
 import type { AppContext } from '../../app-context';
 import { notFound } from '../../http-error';
 import { requireRole } from '../../middleware/bench-access';
@@ -17,7 +16,7 @@ import { currentBench, currentUser } from '../../request-state';
 import { Checkpoint } from '../runs/checkpoint.entity';
 import { loadRun, requireControl } from '../runs/run-access';
 import type { Run } from '../runs/run.entity';
-import { storeEvaluation } from './evaluation-store';
+import { evaluationExistsBody, storeEvaluation } from './evaluation-store';
 import { EvaluationRepository, toEvaluationDto, toEvaluationSummary } from './evaluation.repository';
 import { UUID } from '../../ids';
 
@@ -60,14 +59,7 @@ export function checkpointEvaluationRoutes(ctx: AppContext): Router {
     });
     const evaluation = stored.evaluation;
     if (stored.existing) {
-      const answer: EvaluationExistsBody = {
-        error: {
-          code: ErrorCode.EvaluationExists as 'EVALUATION_EXISTS',
-          message: `This checkpoint was already evaluated with the same settings (step ${checkpoint.step}); the stored figures are in "existing".`,
-          existing: toEvaluationDto(evaluation),
-        },
-      };
-      res.status(409).json(answer);
+      res.status(409).json(evaluationExistsBody(checkpoint.step, evaluation));
       return;
     }
     res.status(201).json(toEvaluationDto(evaluation));
