@@ -118,22 +118,32 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
   let connection: Redis | null = null;
   if (o.queueUrl) {
     const free = [...slots];
+    /**
+     * A claim for a queue job (a run or an evaluation request): a refused token ends the runner; while another
+     * runner's lease is still fresh (a killed runner's lease runs out), the job waits until it has, without holding a
+     * thread meanwhile or using up an attempt.
+     */
+    const claimOrDelay = async <T>(job: Job, lockToken: string | undefined, claim: () => Promise<T>): Promise<T> => {
+      try {
+        return await claim();
+      } catch (e) {
+        if (isRefusal(e)) void giveUp(e);
+        if (e instanceof RunnerApiError && e.code === 'RUN_HELD') {
+          await job.moveToDelayed(Date.now() + Math.max(1, e.retryAfterSeconds ?? 5) * 1000, lockToken);
+          throw new DelayedError();
+        }
+        throw e;
+      }
+    };
     connection = new Redis(o.queueUrl, { maxRetriesPerRequest: null });
     queueWorker = new QueueWorker<RunnerQueueJobData>(RUNNER_QUEUE_NAME, async (job: Job<RunnerQueueJobData>, lockToken?: string) => {
       if (stopping) throw new HandedBack('The runner is shutting down.');
       if (job.name === EVALUATION_JOB_NAME) return evaluateQueued(job as Job<EvaluationQueueJobData>, lockToken);
       let claimed: RunnerJob | null;
       try {
-        claimed = await api.claim(job.data.runId);
+        claimed = await claimOrDelay(job, lockToken, () => api.claim(job.data.runId));
       } catch (e) {
-        if (isRefusal(e)) void giveUp(e);
         if (e instanceof RunnerApiError && e.code === 'RUN_NOT_QUEUED') return 'not queued';
-        if (e instanceof RunnerApiError && e.code === 'RUN_HELD') {
-          // Another runner's lease is still fresh (a killed runner's lease runs out): try again when it has,
-          // without holding a thread meanwhile or using up an attempt.
-          await job.moveToDelayed(Date.now() + Math.max(1, e.retryAfterSeconds ?? 5) * 1000, lockToken);
-          throw new DelayedError();
-        }
         throw e;
       }
       if (!claimed) return 'nothing to do';
@@ -156,17 +166,7 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
     });
     /** An `evaluate` job: claim its request by id, compute it in a free thread, return. */
     const evaluateQueued = async (job: Job<EvaluationQueueJobData>, lockToken?: string): Promise<string> => {
-      let claimed: RunnerEvaluationJob | null;
-      try {
-        claimed = await api.claimEvaluation(job.data.requestId);
-      } catch (e) {
-        if (isRefusal(e)) void giveUp(e);
-        if (e instanceof RunnerApiError && e.code === 'RUN_HELD') {
-          await job.moveToDelayed(Date.now() + Math.max(1, e.retryAfterSeconds ?? 5) * 1000, lockToken);
-          throw new DelayedError();
-        }
-        throw e;
-      }
+      const claimed = await claimOrDelay(job, lockToken, () => api.claimEvaluation(job.data.requestId));
       if (!claimed) return 'not waiting';
       const slot = free.shift();
       if (!slot) {
