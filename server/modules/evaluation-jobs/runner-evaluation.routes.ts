@@ -70,10 +70,9 @@ export function runnerEvaluationRoutes(ctx: AppContext): Router {
   });
 
   router.post('/:requestId/result', async (req, res) => {
-    const runner = currentRunner(req);
-    await held(req, runner);
+    // The service checks that this runner holds the request (one lookup), then stores the figures.
     const body = parseBody(runnerEvaluationResultSchema, req.body);
-    const answer: RunnerEvaluationResultAnswer = { evaluationId: await jobs().result(runner, String(req.params['requestId']), body.results as EvaluationResults) };
+    const answer: RunnerEvaluationResultAnswer = { evaluationId: await jobs().result(currentRunner(req), String(req.params['requestId']), body.results as EvaluationResults) };
     res.status(201).json(answer);
   });
 
