@@ -165,6 +165,19 @@ describe('Evaluation page settings → worker', { timeout: 30_000 }, () => {
     await vi.waitFor(() => expect(create).toHaveBeenCalledTimes(1));
     expect(evaluate.mock.calls[0]![0]).toMatchObject({ heldOutSplit: 'test', ngramOrder: 4 });
   });
+
+  it('names no K, repeats, S or M for an exact model (this run is a GRU), but its seed and sample count', async () => {
+    const stored = dto({ K: 256, repeats: 3, S: 1024, M: 64, sampleCount: 1000, seed: 7, heldOutSplit: 'test', ngramOrder: 3 } as unknown as EvaluationDto['settings'], 'g1');
+    const { fixture } = await setUp([stored]);
+    const chip = text(fixture, 'stored-evaluations');
+    expect(chip).toContain('seed 7');
+    expect(chip).not.toMatch(/\bK \d/);
+    await ((fixture.nativeElement as HTMLElement).querySelector('[data-testid=stored-evaluations] button') as HTMLButtonElement).click();
+    await fixture.whenStable();
+    const head = ((fixture.nativeElement as HTMLElement).querySelector('.result-head')?.textContent ?? '').replace(/\s+/g, ' ');
+    expect(head).toContain('1000 samples, seed 7');
+    expect(head).not.toMatch(/\bK \d|repeats|\bS \d|\bM \d/);
+  });
 });
 
 describe('Evaluation page cancel', { timeout: 30_000 }, () => {

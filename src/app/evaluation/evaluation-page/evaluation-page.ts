@@ -86,6 +86,8 @@ export class EvaluationPage {
     const r = this.shown()?.results;
     return r && r.family === 'ssm' ? r : null;
   });
+  /** K, repeats, S and M apply to the stochastic model's estimates only; an exact model's figures ignore them. */
+  protected readonly estimated = computed(() => this.run()?.family === 'ssm');
   protected readonly stateSize = computed(() => {
     const r = this.run();
     return r?.family === 'ssm' ? (r.settings as SsmRunSettings).model.stateSize : 0;
