@@ -16,6 +16,7 @@ import { MembershipRepository } from '../modules/benches/membership.repository';
 import type { User } from '../modules/users/user.entity';
 import { UserRepository } from '../modules/users/user.repository';
 import { loadDemoCorpora } from './demo-corpora';
+import { createDemoRuns } from './demo-runs';
 
 export interface SeedContext {
   em: EntityManager;
@@ -81,7 +82,7 @@ const createBench: SeedStep = {
 };
 
 /** Append steps here (or push from a module) to extend the demo. */
-export const demoSeedSteps: SeedStep[] = [createPeople, createBench, loadDemoCorpora];
+export const demoSeedSteps: SeedStep[] = [createPeople, createBench, loadDemoCorpora, createDemoRuns];
 
 /** Runs every step if the database has no users yet. Returns whether it seeded. */
 export async function seedDemoIfEmpty(orm: Orm, config: Config, clock: Clock, steps = demoSeedSteps): Promise<boolean> {
