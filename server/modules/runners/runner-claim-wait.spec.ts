@@ -2,7 +2,8 @@
  * Claims that wait for work (`POST /api/runner/claim` with `waitSeconds`) on the embedded back-end, through the REST
  * API: a claim made before any run exists answers with the run sent to runners afterwards; a short wait with no
  * work answers 204; a waiting claim ends (204) when an evaluation request starts waiting, so the runner can claim
- * that; a client that goes away stops waiting; the field is validated. Timeouts are generous bounds only.
+ * that (and the Runners overview counts the request as waiting until then); a client that goes away stops waiting;
+ * the field is validated. Timeouts are generous bounds only.
  */
 import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
@@ -10,6 +11,7 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { RunnerEvaluationJob } from '../../../shared/api/evaluation-jobs';
 import type { RunnerJob } from '../../../shared/api/runner-jobs';
+import type { RunnersOverview } from '../../../shared/api/runners';
 import type { CheckpointDto } from '../../../shared/api/runs';
 import { bearer, createBenchFixture, createTestApp, type BenchFixture, type TestApp } from '../../testing/test-app';
 import { createRun, ssmCheckpointBytes, ssmRunBody, uploadCorpus } from '../runs/runs-test-helpers';
@@ -29,6 +31,8 @@ beforeAll(async () => {
 afterAll(async () => t.close());
 
 const claim = (body: object) => request(t.app).post('/api/runner/claim').set(bearer(token)).send(body);
+
+const overviewQueue = async () => ((await request(t.app).get('/api/runners').set(bearer(f.tokens.admin))).body as RunnersOverview).queue;
 
 /** Resolves once `n` claims wait on the server (polls the app's wake-up signal). */
 async function claimsWaiting(n: number): Promise<void> {
@@ -87,9 +91,12 @@ describe('a claim that waits for work', () => {
     expect(asked.status).toBe(201);
     const res = await pending;
     expect(res.status).toBe(204);
+    // The Runners page counts the request among the work waiting for a runner until one claims it.
+    expect((await overviewQueue()).evaluationsWaiting).toBe(1);
     const evaluation = await request(t.app).post('/api/runner/evaluations/claim').set(bearer(token)).send({});
     expect(evaluation.status).toBe(200);
     expect(evaluation.body as RunnerEvaluationJob).toMatchObject({ requestId: asked.body.id, runId: tabRun.id, checkpoint: { step: 60 } });
+    expect(await overviewQueue()).toEqual({ waiting: 0, active: 2, evaluationsWaiting: 0 });
   }, 15_000);
 
   it('stops waiting when the client goes away', async () => {
