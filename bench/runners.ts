@@ -5,8 +5,12 @@
  * both. Each round starts a fresh runner and waits until its threads have loaded (start-up, reported apart and
  * in a second speed-up), then times the grid from its creation to the server's time of its last finish. Also
  * reports CPU seconds per grid (the main thread's apart: server and runner bookkeeping, from /proc on Linux).
- * Writes bench/results/runners.json and prints the figures. Target: 2 threads ≥ 1.7× faster on 2 cores.
- * Options (environment): BENCH_RUNNER_STEPS (steps per run, default 150), BENCH_RUNNER_ROUNDS (default 2).
+ * First, with no server yet, it measures the machine's ceiling (bench/step-ceiling.ts): the bare training step of
+ * the same runs in one worker thread alone and in two at once, so the grid's speed-up can be read against what two
+ * threads can gain here at all. Writes bench/results/runners.json (`ceiling` among the figures) and prints the
+ * figures. Target: 2 threads ≥ 1.7× faster on 2 cores.
+ * Options (environment): BENCH_RUNNER_STEPS (steps per run, default 150), BENCH_RUNNER_ROUNDS (default 2),
+ * BENCH_CEILING_STEPS (timed steps per ceiling thread, default 200; 0 leaves the ceiling out).
  */
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { availableParallelism, cpus, loadavg } from 'node:os';
@@ -14,6 +18,7 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { GridDto } from '../shared/api/grids';
 import { startRunnerThreads } from '../runner/runner';
+import { benchRunSettings, measureCeiling, type CeilingResult } from './step-ceiling';
 import { api, json, openLab, runnerToken, runsOf, startHarnessServer, waitFor, type Lab } from '../tests/cross/support/runner-harness';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
@@ -22,11 +27,9 @@ const STEPS = Number(process.env['BENCH_RUNNER_STEPS'] ?? 150);
 const ROUNDS = Number(process.env['BENCH_RUNNER_ROUNDS'] ?? 2);
 const quiet = { write: () => true, isTTY: false };
 
+const CEILING_STEPS = Number(process.env['BENCH_CEILING_STEPS'] ?? 200);
 /** A small state-space model that trains at tens of steps per second on one core (state 8, K 4, batch 32). */
-const SETTINGS = {
-  model: { stateSize: 8, generativeFlow: [{ kind: 'coupling' }, { kind: 'diag' }], inferenceFlow: [{ kind: 'diag' }], flowHidden: 16, encoderSize: 16, embeddingSize: 8, proposalHidden: 16, observationHidden: 0 },
-  training: { steps: STEPS, batchSize: 32, samples: 4, learningRate: 0.01, clipNorm: 5, evalEvery: 50, evalSamples: 8, checkpointEvery: 50, seed: 1 },
-};
+const SETTINGS = benchRunSettings(STEPS);
 
 interface Measure { startupSeconds: number; wallSeconds: number; coresBusy: number; cpuSeconds: number; mainThreadCpuSeconds: number | null }
 
@@ -84,6 +87,15 @@ async function measureGrid(base: string, lab: Lab, token: string, threads: numbe
   }
 }
 
+// The machine's ceiling first, while no server runs in this process.
+const ceilingLoadBefore = loadavg();
+const ceiling: CeilingResult | null = CEILING_STEPS > 0 ? await measureCeiling(CEILING_STEPS, ROUNDS) : null;
+if (ceiling) {
+  process.stdout.write(`ceiling: a bare training step takes ${ceiling.medianMsPerStepAlone} ms in one thread alone and ` +
+    `${ceiling.medianMsPerStepTwoAtOnce} ms in each of two threads at once (${ceiling.speedUpCeiling}× at most from a second thread here; ` +
+    `load average before ${ceilingLoadBefore.map((x) => x.toFixed(2)).join(' ')})\n`);
+}
+
 // BENCH_RUNNER_LOG=1 prints the server's request lines (to count the calls a grid makes).
 const server = await startHarnessServer(process.env['BENCH_RUNNER_LOG'] ? { LOG_LEVEL: 'info' } : {});
 try {
@@ -129,6 +141,12 @@ try {
     startupSeconds: each((m) => m.startupSeconds),
     /** The same comparison with each runner's start-up added to its grid (a runner started for one grid only). */
     speedUpWithStartup: r2(total(1) / total(2)),
+    /**
+     * The machine's ceiling (no server, no runner): ms per bare training step of these runs in one worker thread alone
+     * and in each of two at once, one process; speedUpCeiling = 2 × alone / two-at-once. The grid's speed-up below it
+     * is the runner's and the server's overhead; the ceiling below 2 is the machine's.
+     */
+    ceiling: ceiling ? { ...ceiling, loadAverageBefore: ceilingLoadBefore.map(r2) } : null,
     note: 'Wall time from creating the grid until the server recorded its last run as finished; the runner was started before ' +
       'and its threads had loaded (startupSeconds, also folded into speedUpWithStartup). Other processes shared the ' +
       'machine (see the load averages); when they keep both cores busy, a second thread gets no more CPU (coresUsed) and the ' +
@@ -137,7 +155,8 @@ try {
   mkdirSync(join(root, 'bench', 'results'), { recursive: true });
   writeFileSync(join(root, 'bench', 'results', 'runners.json'), `${JSON.stringify(result, null, 2)}\n`);
   process.stdout.write(`1 thread: ${one.toFixed(1)} s, 2 threads: ${two.toFixed(1)} s, speed-up ${result.speedUp}× (target ≥ 1.7×; ` +
-    `${result.speedUpWithStartup}× with the threads' start-up); ` +
+    `${result.speedUpWithStartup}× with the threads' start-up)` +
+    `${ceiling ? `; the machine's ceiling ${ceiling.speedUpCeiling}× (bare step ${ceiling.medianMsPerStepAlone} ms alone, ${ceiling.medianMsPerStepTwoAtOnce} ms two at once)` : ''}; ` +
     `load average before ${result.loadAverageBefore.join(' ')}, after ${result.loadAverageAfter.join(' ')}\n` +
     `written to bench/results/runners.json\n`);
 } finally {

@@ -24,6 +24,9 @@ export class RunnerApiError extends Error {
   }
 }
 
+/** A claim that waits for work gets this much longer than its wait before the runner gives up on the answer. */
+const CLAIM_WAIT_MARGIN_SECONDS = 15;
+
 /** Latest checkpoint of a held run: its bytes and step. */
 export interface CheckpointBytes { bytes: Uint8Array; step: number }
 
@@ -34,9 +37,15 @@ export class RunnerApi {
     this.base = `${serverUrl.replace(/\/+$/, '')}/api/runner`;
   }
 
-  /** `null` when the server has nothing to do (204). */
-  async claim(runId?: string): Promise<RunnerJob | null> {
-    const res = await this.send('POST', '/claim', runId ? { runId } : {});
+  /**
+   * `null` when the server has nothing to do (204). With `waitSeconds` (no run id) the server holds the answer until
+   * work may be there or the wait ends; this call's timeout then exceeds the wait. `signal` ends the call early
+   * (the runner stops).
+   */
+  async claim(runId?: string, wait: { waitSeconds?: number; signal?: AbortSignal } = {}): Promise<RunnerJob | null> {
+    const body = runId ? { runId } : wait.waitSeconds ? { waitSeconds: wait.waitSeconds } : {};
+    const timeoutMs = Math.max(this.timeoutMs, ((wait.waitSeconds ?? 0) + CLAIM_WAIT_MARGIN_SECONDS) * 1000);
+    const res = await this.send('POST', '/claim', body, [], { timeoutMs, signal: wait.signal });
     if (res.status === 204) return null;
     return (await res.json()) as RunnerJob;
   }
@@ -107,7 +116,7 @@ export class RunnerApi {
     await this.send('POST', `/evaluations/${requestId}/end`, body);
   }
 
-  private async send(method: string, path: string, body?: unknown, allowed: number[] = []): Promise<Response> {
+  private async send(method: string, path: string, body?: unknown, allowed: number[] = [], call: { timeoutMs?: number; signal?: AbortSignal } = {}): Promise<Response> {
     const headers: Record<string, string> = { Authorization: `Bearer ${this.token}` };
     let payload: BodyInit | undefined;
     if (body instanceof Uint8Array) {
@@ -119,7 +128,9 @@ export class RunnerApi {
     }
     let res: Response;
     try {
-      res = await fetch(`${this.base}${path}`, { method, headers, body: payload, signal: AbortSignal.timeout(this.timeoutMs) });
+      const timeout = AbortSignal.timeout(call.timeoutMs ?? this.timeoutMs);
+      const signal = call.signal ? AbortSignal.any([timeout, call.signal]) : timeout;
+      res = await fetch(`${this.base}${path}`, { method, headers, body: payload, signal });
     } catch (e) {
       throw new RunnerApiError(0, 'NETWORK', `The server at ${this.base} did not answer ${method} ${path} (${(e as Error).message}).`);
     }

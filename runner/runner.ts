@@ -1,6 +1,7 @@
 /**
- * The runner: `threads` worker threads, each training one job at a time, fed either by polling the server
- * (`POST /api/runner/claim` without a run id, backing off while there is nothing to do: the embedded back-end)
+ * The runner: `threads` worker threads, each training one job at a time, fed either by claiming from the server
+ * (`POST /api/runner/claim` without a run id and with `waitSeconds`, so the server answers as soon as work is
+ * queued; an older server that refuses the field gets polls backing off 0.5 → 5 s instead: the embedded back-end)
  * or by a BullMQ `Worker` on the queue `noisewright-runs` (each job = claim that run, train it, return). A
  * heartbeat every 5 s renews the leases and brings pause/stop controls. `stop()` hands every job back as
  * `queued` after saving a checkpoint. The server starts its embedded runner threads with `startRunnerThreads`.
@@ -46,6 +47,10 @@ const isRefusal = (e: unknown): e is RunnerApiError => e instanceof RunnerApiErr
 const HEARTBEAT_EVERY_MS = 5000;
 const IDLE_FIRST_MS = 500;
 const IDLE_MAX_MS = 5000;
+/** How long a claim waits on the server for work (the server allows up to RUNNER_CLAIM_MAX_WAIT_SECONDS). */
+const CLAIM_WAIT_SECONDS = 20;
+/** A waiting claim answered 204 sooner than this came back without waiting (a wake for another thread's work, or a server shutting down). */
+const QUICK_ANSWER_MS = 1000;
 /** How long `stop()` waits for jobs to save and hand back before ending the threads anyway. */
 const STOP_WAIT_MS = 60_000;
 
@@ -64,6 +69,23 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
   const refused = new Promise<string>((resolve) => { refuse = resolve; });
   let wake: () => void = () => {};
   const stopped = new Promise<void>((resolve) => { wake = resolve; });
+  /** Aborts claims that wait on the server when the runner stops. */
+  const stopCalls = new AbortController();
+  /** Whether claims wait on the server for work; false once a server refused `waitSeconds` (an older version). */
+  let waitForWork = true;
+  /** A run to train: a claim that waits for work, or (older servers) one that answers at once. */
+  const claimRun = async (): Promise<{ job: RunnerJob | null; waited: boolean }> => {
+    if (waitForWork) {
+      try {
+        return { job: await api.claim(undefined, { waitSeconds: CLAIM_WAIT_SECONDS, signal: stopCalls.signal }), waited: true };
+      } catch (e) {
+        if (!(e instanceof RunnerApiError && (e.status === 400 || e.status === 422) && e.code.startsWith('VALIDATION'))) throw e;
+        waitForWork = false;
+        display.note(`claim: the server does not wait for work (${e.message}); asking every 0.5–5 s instead`);
+      }
+    }
+    return { job: await api.claim(), waited: false };
+  };
   const sleep = (ms: number) => Promise.race([new Promise<void>((r) => setTimeout(r, ms).unref()), stopped]);
 
   const heartbeat = async () => {
@@ -188,9 +210,13 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
       // would wait in this runner while another one could train it.
       await Promise.race([slot.whenReady().catch(() => undefined), stopped]);
       let idle = IDLE_FIRST_MS;
+      /** Waiting claims in a row that came back empty at once: two of them and the thread backs off as when polling. */
+      let quickEmpty = 0;
       while (!stopping) {
         let job: RunnerJob | null = null;
         let evaluation: RunnerEvaluationJob | null = null;
+        let waited = false;
+        let began = Date.now();
         try {
           // Evaluations first: someone waits at the page for them, and they are short beside a training run.
           // A server without evaluation routes (404) or a passing fault here must not keep runs from training.
@@ -198,13 +224,16 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
             if (isRefusal(e)) throw e;
             return null;
           });
-          if (!evaluation) job = await api.claim();
+          if (!evaluation) {
+            began = Date.now();
+            ({ job, waited } = await claimRun());
+          }
         } catch (e) {
           if (isRefusal(e)) {
             void giveUp(e);
             break;
           }
-          display.note(`claim: ${(e as Error).message}`);
+          if (!stopping) display.note(`claim: ${(e as Error).message}`);
         }
         if (stopping && (job || evaluation)) {
           if (job) await api.finish(job.runId, { status: 'queued', stepsDone: job.stepsDone }).catch(() => undefined);
@@ -213,15 +242,24 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
         }
         if (evaluation) {
           idle = IDLE_FIRST_MS;
+          quickEmpty = 0;
           await evaluate(slot, evaluation);
           continue;
         }
         if (!job) {
+          // A claim that waited on the server asks again at once (it answered because work came, or its wait ended).
+          const quick = Date.now() - began < QUICK_ANSWER_MS;
+          quickEmpty = waited && quick ? quickEmpty + 1 : 0;
+          if (waited && quickEmpty < 2) {
+            if (!quick) idle = IDLE_FIRST_MS;
+            continue;
+          }
           await sleep(idle);
           idle = Math.min(IDLE_MAX_MS, idle * 2);
           continue;
         }
         idle = IDLE_FIRST_MS;
+        quickEmpty = 0;
         await train(slot, job);
       }
     });
@@ -236,6 +274,7 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
       if (stopping) return;
       stopping = true;
       wake();
+      stopCalls.abort();
       for (const s of slots) s.command('shutdown');
       // An evaluation cannot save its work half-way: give it back now (another runner starts it again).
       await Promise.all(slots.filter((s) => s.kind === 'evaluate').map((s) => s.giveBack()));

@@ -9,6 +9,7 @@ import type { Mailbox } from './modules/mail/mailbox';
 import type { Mailer } from './modules/mail/mailer';
 import type { RunQueue } from './modules/runners/queue/run-queue';
 import type { RunEventBus } from './modules/runners/run-events';
+import type { RunnerWakeup } from './modules/runners/runner-wakeup';
 
 export interface AppDeps {
   orm: Orm;
@@ -26,6 +27,8 @@ export interface AppDeps {
   runQueue?: RunQueue;
   /** The bus run changes are published on (server-sent events); defaults to a new one. */
   runEvents?: RunEventBus;
+  /** Wakes runner claims that wait for work; defaults to a new one (pass the same one wherever the deps are reused). */
+  runnerWakeup?: RunnerWakeup;
 }
 
 export interface AppContext {
@@ -40,4 +43,6 @@ export interface AppContext {
   logError: (error: unknown, req?: Request) => void;
   runQueue: RunQueue;
   runEvents: RunEventBus;
+  /** Wakes runner claims that wait for work (runs queued for runners, evaluation requests waiting); closed at shutdown. */
+  runnerWakeup: RunnerWakeup;
 }

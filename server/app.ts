@@ -23,6 +23,7 @@ import { AdminSetup } from './modules/auth/admin-setup';
 import { serverModules } from './modules/registry';
 import { EmbeddedRunQueue } from './modules/runners/queue/run-queue';
 import { RunEventBus } from './modules/runners/run-events';
+import { RunnerWakeup } from './modules/runners/runner-wakeup';
 import { ErrorCode } from '../shared/api/errors';
 import { HttpError } from './http-error';
 import './request-state';
@@ -44,6 +45,7 @@ export function appContext(config: Config, deps: AppDeps): AppContext {
     },
     runQueue: deps.runQueue ?? new EmbeddedRunQueue(),
     runEvents: deps.runEvents ?? new RunEventBus(),
+    runnerWakeup: deps.runnerWakeup ?? new RunnerWakeup(),
   };
 }
 

@@ -16,6 +16,7 @@ import { startEmbeddedRunnerThreads } from './modules/runners/embedded-threads';
 import { createRunQueue } from './modules/runners/queue/create-run-queue';
 import { watchLeases } from './modules/runners/lease-expiry';
 import { RunEventBus } from './modules/runners/run-events';
+import { RunnerWakeup } from './modules/runners/runner-wakeup';
 import { ensureQueuedJobs, prepareEmbeddedRunner, releaseEmbeddedRuns } from './modules/runners/runner-startup';
 import { seedDemoIfEmpty } from './seeders/demo-seed';
 import { createLogger } from './logging';
@@ -82,6 +83,7 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
     const runQueue = createRunQueue(config);
     cleanups.push(() => runQueue.close());
     const runEvents = new RunEventBus();
+    const runnerWakeup = new RunnerWakeup();
     // The runs the previous start's threads held go back to the queue (they resume from their latest checkpoint).
     const embedded = config.runnerThreads > 0 ? await prepareEmbeddedRunner(orm, clock) : null;
     if (!embedded) await releaseEmbeddedRuns(orm);
@@ -107,6 +109,12 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
           server.closeAllConnections();
         }),
     );
+    // Runs before the server closes (cleanups run last first): claims that wait for work answer 204 at once, and
+    // their answers are written (one turn of the event loop) before the connections are closed.
+    cleanups.push(async () => {
+      runnerWakeup.close();
+      await new Promise((done) => setImmediate(done));
+    });
     const port = (server.address() as AddressInfo).port;
     const hostForUrl = config.host === '0.0.0.0' || config.host === '::' ? '127.0.0.1' : config.host;
     const url = `http://${hostForUrl.includes(':') ? `[${hostForUrl}]` : hostForUrl}:${port}`;
@@ -115,7 +123,7 @@ export async function startServer(input: Config, options: { clock?: Clock } = {}
 
     const adminSetup = new AdminSetup(config);
     adminSetup.announce(logger, await new UserRepository(orm.em.fork()).countAdmins());
-    const deps = { orm, mailer, mailbox, clock, logger, adminSetup, runQueue, runEvents };
+    const deps = { orm, mailer, mailbox, clock, logger, adminSetup, runQueue, runEvents, runnerWakeup };
     server.on('request', createApp(config, deps));
     // Runner runs whose runner stopped answering go back to waiting as soon as their lease runs out.
     cleanups.push(watchLeases(appContext(config, deps)));

@@ -21,6 +21,7 @@ import { UserRepository } from '../modules/users/user.repository';
 import { createRunQueue } from '../modules/runners/queue/create-run-queue';
 import type { RunQueue } from '../modules/runners/queue/run-queue';
 import { RunEventBus } from '../modules/runners/run-events';
+import { RunnerWakeup } from '../modules/runners/runner-wakeup';
 
 export const TEST_PASSWORD = 'correct horse 42';
 
@@ -73,6 +74,7 @@ export async function createTestApp(env: Record<string, string> = {}): Promise<T
   const errors: unknown[] = [];
   const runQueue = createRunQueue(config);
   const runEvents = new RunEventBus();
+  const runnerWakeup = new RunnerWakeup();
   const deps: AppDeps = {
     orm,
     mailer: mailboxMailer(mailbox, config.mailFrom),
@@ -81,6 +83,7 @@ export async function createTestApp(env: Record<string, string> = {}): Promise<T
     logError: (error) => errors.push(error),
     runQueue,
     runEvents,
+    runnerWakeup,
   };
   const app = createApp(config, deps);
   return {
@@ -98,6 +101,7 @@ export async function createTestApp(env: Record<string, string> = {}): Promise<T
       return errors.splice(0, errors.length);
     },
     async close() {
+      runnerWakeup.close();
       await runQueue.close();
       await orm.close(true);
       rmSync(dir, { recursive: true, force: true });

@@ -87,8 +87,32 @@ export interface RunnerHeartbeatAnswer {
   controls: RunnerControl[];
 }
 
-/** `POST /api/runner/claim`: BullMQ mode sends the job's run id; embedded mode sends none (the server picks fairly). */
-export const runnerClaimSchema = z.object({ runId: runId.optional() }).strict();
+/** The longest a claim may wait for work (`waitSeconds`); a runner's HTTP timeout for the claim must exceed its wait. */
+export const RUNNER_CLAIM_MAX_WAIT_SECONDS = 25;
+
+/**
+ * `POST /api/runner/claim`: BullMQ mode sends the job's run id; embedded mode sends none (the server picks fairly).
+ * `waitSeconds` (whole number 0–25, only without `runId`): when nothing can be claimed, the server holds the answer
+ * until a run becomes queued for runners or an evaluation request starts waiting (then it claims again and answers
+ * with what that gives: 200 with the job, or 204 — e.g. when the new work was an evaluation, which the runner
+ * claims through `/evaluations/claim`), until the wait ends (204), or until the server shuts down (204). Without it
+ * (or 0) the claim answers at once, as before.
+ */
+export const runnerClaimSchema = z
+  .object({
+    runId: runId.optional(),
+    waitSeconds: z
+      .number({ error: 'Give waitSeconds as a number of seconds.' })
+      .int('Give waitSeconds as a whole number of seconds.')
+      .min(0, 'Give waitSeconds of 0 or more.')
+      .max(RUNNER_CLAIM_MAX_WAIT_SECONDS, `Give waitSeconds of at most ${RUNNER_CLAIM_MAX_WAIT_SECONDS}.`)
+      .optional(),
+  })
+  .strict()
+  .refine((b) => b.runId === undefined || b.waitSeconds === undefined, {
+    path: ['waitSeconds'],
+    error: 'Send waitSeconds only without a runId: a claim of a named run answers at once.',
+  });
 export type RunnerClaimRequest = z.input<typeof runnerClaimSchema>;
 
 /** `POST /api/runner/claim` → 200: the job to train (204 when there is nothing to do). */

@@ -67,8 +67,11 @@ export interface RunnerDto {
 export interface RunnersOverview {
   backend: QueueBackend;
   runners: RunnerDto[];
-  /** Runs waiting for a runner / held by one, over all benches. */
-  queue: { waiting: number; active: number };
+  /**
+   * Runs waiting for a runner / held by one, over all benches; `evaluationsWaiting`: evaluation requests waiting for
+   * a runner (sent from the evaluation page, not yet claimed).
+   */
+  queue: { waiting: number; active: number; evaluationsWaiting: number };
 }
 
 /** `POST /api/runners` answer: the token is shown this once. */

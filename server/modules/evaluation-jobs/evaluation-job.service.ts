@@ -60,6 +60,7 @@ export class EvaluationJobService {
     });
     await this.em.flush();
     await this.ctx.runQueue.enqueueEvaluations([{ requestId: request.id, runId: run.id, benchId: bench.id }]);
+    this.ctx.runnerWakeup.notify();
     return request;
   }
 
@@ -165,6 +166,7 @@ export class EvaluationJobService {
     await this.em.flush();
     if (status === 'waiting') {
       await this.ctx.runQueue.enqueueEvaluations([{ requestId: request.id, runId: request.run.id, benchId: request.bench.id }]);
+      this.ctx.runnerWakeup.notify();
     }
   }
 
@@ -190,16 +192,20 @@ export class EvaluationJobService {
   /** Requests whose runner stopped answering (lease ran out) wait again, with a reason that says so; returns how many. */
   async releaseExpired(): Promise<number> {
     const now = this.ctx.clock.now();
-    return this.em.nativeUpdate(EvaluationRequest, { status: 'running', leaseExpiresAt: { $lte: now } }, {
+    const released = await this.em.nativeUpdate(EvaluationRequest, { status: 'running', leaseExpiresAt: { $lte: now } }, {
       status: 'waiting', runner: null, leaseExpiresAt: null, stage: null, updatedAt: now,
       statusReason: 'Its runner stopped answering (the lease ran out); waiting for another runner, which starts the evaluation again.',
     });
+    if (released > 0) this.ctx.runnerWakeup.notify();
+    return released;
   }
 
   /** Every request a runner holds waits again (its token was revoked, or the server restarted its threads). */
   async releaseAll(runnerId: string): Promise<number> {
-    return this.em.nativeUpdate(EvaluationRequest, { status: 'running', runner: runnerId }, {
+    const released = await this.em.nativeUpdate(EvaluationRequest, { status: 'running', runner: runnerId }, {
       status: 'waiting', runner: null, leaseExpiresAt: null, stage: null, updatedAt: this.ctx.clock.now(),
     });
+    if (released > 0) this.ctx.runnerWakeup.notify();
+    return released;
   }
 }

@@ -1,7 +1,7 @@
 /**
  * The two things every change of a run does after it is written: put a runner run that became `queued` on
- * the queue (with its fairness priority) or take one that stopped waiting off it, and publish the change on
- * the event bus (server-sent events).
+ * the queue (with its fairness priority, waking the claims that wait for work) or take one that stopped waiting
+ * off it, and publish the change on the event bus (server-sent events).
  */
 import { wrap, type EntityManager } from '@mikro-orm/core';
 import type { AppContext } from '../../app-context';
@@ -33,6 +33,8 @@ export async function queueForRunners(ctx: AppContext, em: EntityManager, runs: 
     for (const r of list) queued.push({ runId: r.id, benchId, priority: 1 + waiting++ });
   }
   await ctx.runQueue.enqueue(queued);
+  // Runners whose claims wait for work (embedded back-end) claim again now.
+  ctx.runnerWakeup.notify();
 }
 
 /**

@@ -1,7 +1,8 @@
 /**
  * /api/runner/*: the routes runner programs (and the server's embedded runner threads) call, with a runner
  * token. Contract: shared/api/runner-jobs.ts and DEVELOPERS.md "Runners". A runner reads and writes only
- * the runs it holds (409 RUN_NOT_HELD otherwise) and only their corpus.
+ * the runs it holds (409 RUN_NOT_HELD otherwise) and only their corpus. `POST /claim` with `waitSeconds` waits for
+ * work (claim-answer.ts `claimWaiting`) instead of answering 204 at once.
  */
 import { Router } from 'express';
 import { ErrorCode } from '../../../shared/api/errors';
@@ -25,7 +26,7 @@ import { checkpointBytes, rawCheckpointBody } from '../runs/checkpoint-upload';
 import { Checkpoint } from '../runs/checkpoint.entity';
 import { MetricRepository } from '../runs/metric.repository';
 import { corpusSplit } from '../runs/run-settings';
-import { answerClaim } from './claim-answer';
+import { answerClaim, claimWaiting } from './claim-answer';
 import { currentRunner, requireRunner } from './runner-auth';
 import { RunnerJobService } from './runner-job.service';
 import { runnerEvaluationRoutes } from '../evaluation-jobs/runner-evaluation.routes';
@@ -43,8 +44,10 @@ export function runnerJobRoutes(ctx: AppContext): Router {
   });
 
   router.post('/claim', async (req, res) => {
-    const { runId } = parseBody(runnerClaimSchema, req.body);
-    await answerClaim(res, () => jobs().claim(currentRunner(req), runId));
+    const { runId, waitSeconds } = parseBody(runnerClaimSchema, req.body);
+    const runner = currentRunner(req);
+    await answerClaim(res, () => claimWaiting(ctx, res, waitSeconds ?? 0, () => jobs().claim(runner, runId),
+      (job) => jobs().finish(runner, job.runId, { status: 'queued', stepsDone: job.stepsDone })));
   });
 
   router.get('/jobs/:runId/training-set', async (req, res) => {

@@ -92,6 +92,11 @@ export class RunnerRepository {
     );
   }
 
+  /** Evaluation requests waiting for a runner (not yet claimed), over all benches. */
+  async evaluationsWaiting(): Promise<number> {
+    return this.em.count(EvaluationRequest, { status: 'waiting' });
+  }
+
   /** Runs waiting for a runner (queued) and being trained by one, over all benches or one. */
   async queueCounts(benchId?: string): Promise<{ waiting: number; active: number }> {
     const where = benchId ? ' and bench_id = ?' : '';

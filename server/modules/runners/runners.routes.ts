@@ -1,5 +1,6 @@
 /**
- * /api/runners (instance admin): the runners with their heartbeat, jobs and throughput, the queue depth, new
+ * /api/runners (instance admin): the runners with their heartbeat, jobs and throughput, the queue depth (runs, and
+ * evaluation requests waiting), new
  * runner tokens (shown once) and revocation. Revoking gives the runner's runs back to the queue.
  */
 import { Router, type RequestHandler } from 'express';
@@ -31,7 +32,7 @@ export function runnerAdminRoutes(ctx: AppContext): Router {
     const evaluating = await repo.heldEvaluations(now);
     const list = (await repo.listAll()).map((r) => toRunnerDto(r, held.filter((run) => run.runner?.id === r.id), now,
       evaluating.filter((q) => q.runner?.id === r.id)));
-    const body: RunnersOverview = { backend: ctx.runQueue.backend, runners: list, queue: await repo.queueCounts() };
+    const body: RunnersOverview = { backend: ctx.runQueue.backend, runners: list, queue: { ...(await repo.queueCounts()), evaluationsWaiting: await repo.evaluationsWaiting() } };
     res.json(body);
   });
 

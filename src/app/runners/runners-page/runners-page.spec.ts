@@ -19,7 +19,7 @@ const runner = (over: Partial<RunnerDto>): RunnerDto => ({
 });
 const OVERVIEW: RunnersOverview = {
   backend: 'embedded',
-  queue: { waiting: 3, active: 1 },
+  queue: { waiting: 3, active: 1, evaluationsWaiting: 0 },
   runners: [
     runner({ currentJobs: [{ runId: 'run-1', runName: 'Cell 1', benchId: 'b1', benchName: 'Lab', step: 40, steps: 80, stepsPerSecond: 2.5 }], stepsPerSecond: 2.5, jobsDone: 7 }),
     runner({ id: 'r-box', name: 'box-2', kind: 'remote', lastHeartbeatAt: null, online: false, threads: null }),
@@ -52,7 +52,21 @@ describe('RunnersPage', { timeout: 30_000 }, () => {
     expect(rows[1]).toEqual(['box-2 remote', 'offline', 'never', '—', 'idle', '—', '0', 'Revoke']);
     expect(text('queue-waiting')).toBe('3');
     expect(text('queue-active')).toBe('1');
+    expect(text('queue-line')).toBe('3 runs waiting · 1 being trained');
     expect(text('backend')).toMatch(/^Embedded/);
+  });
+
+  it('counts evaluation requests waiting for a runner beside the runs, singular and plural', async () => {
+    const lineFor = async (queue: RunnersOverview['queue']) => {
+      const { text } = await setUp({ overview: vi.fn(async () => ({ ...OVERVIEW, queue })) });
+      const line = text('queue-line');
+      TestBed.resetTestingModule();
+      return line;
+    };
+    expect(await lineFor({ waiting: 2, active: 1, evaluationsWaiting: 1 })).toBe('2 runs and 1 evaluation waiting · 1 being trained');
+    expect(await lineFor({ waiting: 1, active: 0, evaluationsWaiting: 3 })).toBe('1 run and 3 evaluations waiting · 0 being trained');
+    expect(await lineFor({ waiting: 0, active: 2, evaluationsWaiting: 1 })).toBe('1 evaluation waiting · 2 being trained');
+    expect(await lineFor({ waiting: 0, active: 0, evaluationsWaiting: 0 })).toBe('0 runs waiting · 0 being trained');
   });
 
   it('shows an evaluation a runner computes as one of its current jobs, with its stage', async () => {
