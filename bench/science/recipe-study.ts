@@ -9,6 +9,7 @@
  * product's engine: the same batch stream and per-step noise seeds as `npm run train` with the same seed.
  */
 import { appendFileSync } from 'node:fs';
+import * as tf from '@tensorflow/tfjs-core';
 import { parseArgs } from 'node:util';
 import { createBatcher } from '../../shared/data/batcher';
 import { encodeBatch } from '../../shared/data/encode';
@@ -22,7 +23,7 @@ import { SsmTrainer } from '../../shared/model/trainer';
 import { initNodeBackend } from '../../shared/node/tf-node';
 import { loadCorpus } from '../../shared/cli/corpus-file';
 import { buildCorpora } from './science-corpora';
-import { applyRecipeInit, learningRateAt, STUDY_START, type ArmSettings } from './recipe-arms';
+import { applyRecipeInit, initialStateValues, scaleContextWeights, learningRateAt, STUDY_START, type ArmSettings } from './recipe-arms';
 
 const { values: v, positionals } = parseArgs({
   allowPositionals: true,
@@ -54,6 +55,11 @@ const model = new StateSpaceModel({
   proposalHidden: arm.proposalHidden,
 }, seed);
 applyRecipeInit(model, arm);
+scaleContextWeights(model, arm.contextGain);
+// The initial-state arms: h0 drawn at the start and/or held fixed (set back after every update).
+const h0Values = initialStateValues(arm, arm.stateSize, seed);
+const h0Fixed = h0Values && !arm.h0Learned ? tf.keep(tf.tensor1d(h0Values)) : null;
+if (h0Values) model.param('h0').assign(tf.tensor1d(h0Values));
 const trainer = new SsmTrainer(model, { learningRate: arm.learningRate, samples: arm.samples, clipNorm: arm.clipNorm, warmupSteps: arm.warmupSteps });
 const batcher = createBatcher(data.parts.train, { batchSize: arm.batchSize, regime: 'token', rng: createRng(seed).fork('batches/0') });
 const t0 = performance.now();
@@ -62,6 +68,7 @@ let window = 0;
 for (let s = 0; s < steps; s++) {
   trainer.learningRate = learningRateAt(arm, s);
   const r = trainer.step(encodeBatch(batcher.next(), alphabet));
+  if (h0Fixed) model.param('h0').assign(h0Fixed);
   window += -r.boundBitsPerChar;
   if ((s + 1) % 100 === 0) {
     curve.push(Number((window / 100).toFixed(3)));
