@@ -110,11 +110,12 @@ export interface ArmSettings extends RecipeInit, LearningRateSchedule, InitialSt
 
 /**
  * Where every arm starts (what it does not name; the table's "defaults"): the model defaults of
- * shared/model/settings-rules.ts, Adam at a constant 0.01, clipping 5, and the neutral initial values — observation
- * scale 1, not the product's later default 3, so that arms stay comparable. `totalSteps` is the run's own.
+ * shared/model/settings-rules.ts as the study began, Adam at a constant 0.01, clipping 5, and the neutral initial
+ * values — observation scale 1 and flow width 32, not the product's later defaults 3 and 16, so that arms stay
+ * comparable (name them on the command line for the current defaults). `totalSteps` is the run's own.
  */
 export const STUDY_START: Omit<ArmSettings, 'totalSteps'> = {
-  stateSize: D.stateSize, generativeFlow: D.generativeFlow.join(','), inferenceFlow: D.inferenceFlow.join(','), flowHidden: D.flowHidden,
+  stateSize: D.stateSize, generativeFlow: D.generativeFlow.join(','), inferenceFlow: D.inferenceFlow.join(','), flowHidden: 32,
   encoderSize: D.encoderSize, proposalHidden: D.proposalHidden, embeddingSize: D.embeddingSize, observationHidden: D.observationHidden,
   samples: D.samples, batchSize: 64, clipNorm: 5, warmupSteps: 0,
   learningRate: 0.01, lrWarmupSteps: 0, lrDecay: 'none', lrFinalFraction: 1,

@@ -2,7 +2,8 @@
  * Step time of recipe-study arms, interleaved in one process (the machine may be shared: compare arms only within
  * one run): CPU ms per training step (process.cpuUsage), median over rounds, the arms' order alternating by round.
  * Each arm is `label` or `label:setting=value,setting=value` with the settings of recipe-study.ts (ArmSettings);
- * every arm starts from the current defaults (observation scale 3). Batches of 64 names from the names union.
+ * every arm starts from the study's starting point with observation scale 3 (flow width 32 unless named). Batches
+ * of 64 names from the names union.
  *   npx tsx bench/science/recipe-step-time.ts --rounds 6 --steps 5 K8 K16:samples=16
  */
 import { loadavg } from 'node:os';

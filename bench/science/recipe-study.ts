@@ -5,7 +5,8 @@
  * Appends one JSON line to the results file. Usage:
  *   npx tsx bench/science/recipe-study.ts --label <name> [--steps 800] [--seed 1] [--out file.jsonl] [setting=value ...]
  * Settings are the fields of `ArmSettings` (recipe-arms.ts); an unnamed one keeps the study's starting point
- * `STUDY_START` there (model defaults, Adam at a constant 0.01, clipping 5, `observationScale` 1). Training follows the
+ * `STUDY_START` there (the model defaults as the study began, flow width 32, Adam at a constant 0.01, clipping 5,
+ * `observationScale` 1). Training follows the
  * product's engine: the same batch stream and per-step noise seeds as `npm run train` with the same seed.
  */
 import { appendFileSync } from 'node:fs';
