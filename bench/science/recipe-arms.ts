@@ -3,6 +3,7 @@
  * schedule and initial values of the transition, tried and not kept (docs/RESULTS.md, "Training recipe study").
  * The observation scale that was kept lives in shared/training/observation-init.ts.
  */
+import { createRng } from '../../shared/data/random';
 import type { NamedWeights } from '../../shared/model/params';
 import { SOFTPLUS_INVERSE_OF_ONE } from '../../shared/model/flows/conditioner';
 import { NEW_RUN_MODEL_DEFAULTS as D } from '../../shared/model/settings-rules';
@@ -83,21 +84,59 @@ export function applyRecipeInit(model: RecipeModel, init: RecipeInit): void {
   model.setWeights(w);
 }
 
+/**
+ * The initial state h0 (zeros and learned as built). `h0Spread` > 0 draws it from N(0, h0Spread^2) at the start
+ * (seeded by the model seed); `h0Learned` 0 keeps it fixed at that value throughout training.
+ */
+export interface InitialStateArm {
+  h0Spread: number;
+  h0Learned: number;
+}
+
+/** The initial state's starting values of an arm: null when it stays as built (zeros). */
+export function initialStateValues(arm: InitialStateArm, stateSize: number, seed: number): Float32Array | null {
+  if (arm.h0Spread === 0) return arm.h0Learned ? null : new Float32Array(stateSize);
+  const rng = createRng(seed).fork('recipe/h0');
+  return Float32Array.from({ length: stateSize }, () => arm.h0Spread * rng.normal());
+}
+
 /** Everything one arm of the study sets (recipe-study.ts takes any of these as `setting=value`). */
-export interface ArmSettings extends RecipeInit, LearningRateSchedule {
+export interface ArmSettings extends RecipeInit, LearningRateSchedule, InitialStateArm {
+  /** Initial gain of the flows' context weights (scaleContextWeights); 1 = as built. */
+  contextGain: number;
   stateSize: number; generativeFlow: string; inferenceFlow: string; flowHidden: number; encoderSize: number; proposalHidden: number;
   embeddingSize: number; observationHidden: number; samples: number; batchSize: number; clipNorm: number; warmupSteps: number;
 }
 
 /**
  * Where every arm starts (what it does not name; the table's "defaults"): the model defaults of
- * shared/model/settings-rules.ts, Adam at a constant 0.01, clipping 5, and the neutral initial values — observation
- * scale 1, not the product's later default 3, so that arms stay comparable. `totalSteps` is the run's own.
+ * shared/model/settings-rules.ts as the study began, Adam at a constant 0.01, clipping 5, and the neutral initial
+ * values — observation scale 1 and flow width 32, not the product's later defaults 3 and 16, so that arms stay
+ * comparable (name them on the command line for the current defaults). `totalSteps` is the run's own.
  */
 export const STUDY_START: Omit<ArmSettings, 'totalSteps'> = {
-  stateSize: D.stateSize, generativeFlow: D.generativeFlow.join(','), inferenceFlow: D.inferenceFlow.join(','), flowHidden: D.flowHidden,
+  stateSize: D.stateSize, generativeFlow: D.generativeFlow.join(','), inferenceFlow: D.inferenceFlow.join(','), flowHidden: 32,
   encoderSize: D.encoderSize, proposalHidden: D.proposalHidden, embeddingSize: D.embeddingSize, observationHidden: D.observationHidden,
   samples: D.samples, batchSize: 64, clipNorm: 5, warmupSteps: 0,
   learningRate: 0.01, lrWarmupSteps: 0, lrDecay: 'none', lrFinalFraction: 1,
-  observationScale: 1, transitionMemory: 0, transitionScale: 1,
+  observationScale: 1, transitionMemory: 0, transitionScale: 1, h0Spread: 0, h0Learned: 1, contextGain: 1,
 };
+
+/**
+ * How strongly the flows see h_{t-1} at the start: multiplies the initial first-layer conditioner weights that read
+ * the context c = h_{t-1} (every row of a diag or shift layer's w1; the rows after the d state rows of a coupling
+ * layer's w1) in both flows by `gain` (1 = as built, Glorot uniform).
+ */
+export function scaleContextWeights(model: RecipeModel, gain: number): void {
+  if (gain === 1) return;
+  const w = model.getWeights();
+  const d = model.settings.stateSize;
+  const H = model.settings.flowHidden;
+  for (const [name, t] of Object.entries(w)) {
+    const m = /^(gen|inf)\/\d+\.(\w+)\.(net|mu)\.w1$/.exec(name);
+    if (!m) continue;
+    const firstRow = m[2] === 'coupling' ? d : 0;
+    for (let i = firstRow * H; i < t.values.length; i++) t.values[i] = (t.values[i] as number) * gain;
+  }
+  model.setWeights(w);
+}

@@ -5,10 +5,12 @@
  * Appends one JSON line to the results file. Usage:
  *   npx tsx bench/science/recipe-study.ts --label <name> [--steps 800] [--seed 1] [--out file.jsonl] [setting=value ...]
  * Settings are the fields of `ArmSettings` (recipe-arms.ts); an unnamed one keeps the study's starting point
- * `STUDY_START` there (model defaults, Adam at a constant 0.01, clipping 5, `observationScale` 1). Training follows the
+ * `STUDY_START` there (the model defaults as the study began, flow width 32, Adam at a constant 0.01, clipping 5,
+ * `observationScale` 1). Training follows the
  * product's engine: the same batch stream and per-step noise seeds as `npm run train` with the same seed.
  */
 import { appendFileSync } from 'node:fs';
+import * as tf from '@tensorflow/tfjs-core';
 import { parseArgs } from 'node:util';
 import { createBatcher } from '../../shared/data/batcher';
 import { encodeBatch } from '../../shared/data/encode';
@@ -22,7 +24,7 @@ import { SsmTrainer } from '../../shared/model/trainer';
 import { initNodeBackend } from '../../shared/node/tf-node';
 import { loadCorpus } from '../../shared/cli/corpus-file';
 import { buildCorpora } from './science-corpora';
-import { applyRecipeInit, learningRateAt, STUDY_START, type ArmSettings } from './recipe-arms';
+import { applyRecipeInit, initialStateValues, scaleContextWeights, learningRateAt, STUDY_START, type ArmSettings } from './recipe-arms';
 
 const { values: v, positionals } = parseArgs({
   allowPositionals: true,
@@ -54,6 +56,11 @@ const model = new StateSpaceModel({
   proposalHidden: arm.proposalHidden,
 }, seed);
 applyRecipeInit(model, arm);
+scaleContextWeights(model, arm.contextGain);
+// The initial-state arms: h0 drawn at the start and/or held fixed (set back after every update).
+const h0Values = initialStateValues(arm, arm.stateSize, seed);
+const h0Fixed = h0Values && !arm.h0Learned ? tf.keep(tf.tensor1d(h0Values)) : null;
+if (h0Values) model.param('h0').assign(tf.tensor1d(h0Values));
 const trainer = new SsmTrainer(model, { learningRate: arm.learningRate, samples: arm.samples, clipNorm: arm.clipNorm, warmupSteps: arm.warmupSteps });
 const batcher = createBatcher(data.parts.train, { batchSize: arm.batchSize, regime: 'token', rng: createRng(seed).fork('batches/0') });
 const t0 = performance.now();
@@ -62,6 +69,7 @@ let window = 0;
 for (let s = 0; s < steps; s++) {
   trainer.learningRate = learningRateAt(arm, s);
   const r = trainer.step(encodeBatch(batcher.next(), alphabet));
+  if (h0Fixed) model.param('h0').assign(h0Fixed);
   window += -r.boundBitsPerChar;
   if ((s + 1) % 100 === 0) {
     curve.push(Number((window / 100).toFixed(3)));

@@ -36,12 +36,15 @@ export const isKnDiscount = (d: number): boolean => Number.isFinite(d) && d > KN
 export const withinLimit = (key: LimitedSetting, n: number): boolean =>
   Number.isInteger(n) && n >= SETTING_LIMITS[key][0] && n <= SETTING_LIMITS[key][1];
 
-/** Model settings of a new run (form and command line). */
+/**
+ * Model settings of a new run (form and command line). `flowHidden` 16 rather than 32: as good or better at every
+ * budget measured, without extra step time (docs/RESULTS.md, "Training recipe study").
+ */
 export const NEW_RUN_MODEL_DEFAULTS = {
   stateSize: 8,
   generativeFlow: ['coupling', 'coupling', 'diag'] as FlowKindName[],
   inferenceFlow: ['diag'] as FlowKindName[],
-  flowHidden: 32,
+  flowHidden: 16,
   observationHidden: 0,
   embeddingSize: 16,
   encoderSize: 64,
