@@ -22,13 +22,13 @@ const training = (steps: number) => ({
 
 /** The demo runs in the order the runners take them (the quick ones first). */
 export const DEMO_RUNS: readonly Omit<CreateRunRequest, 'corpusId' | 'placement'>[] = [
-  { family: 'ngram', name: 'First look: Kneser–Ney order 3', settings: { model: { order: D.ngramOrder, discount: null } } },
+  { family: 'ngram', name: 'Kneser–Ney 3', settings: { model: { order: D.ngramOrder, discount: null } } },
   {
-    family: 'gru', name: 'First look: GRU, state 8',
+    family: 'gru', name: 'GRU 8',
     settings: { model: { stateSize: D.stateSize, embeddingSize: D.embeddingSize, observationHidden: D.observationHidden }, training: training(1200) },
   },
   {
-    family: 'ssm', name: 'First look: noise-driven model, state 8',
+    family: 'ssm', name: 'State-space 8',
     settings: {
       model: {
         stateSize: D.stateSize, generativeFlow: D.generativeFlow.map((kind) => ({ kind })), inferenceFlow: D.inferenceFlow.map((kind) => ({ kind })),

@@ -175,7 +175,7 @@ describe('Evaluation page settings → worker', { timeout: 30_000 }, () => {
     await ((fixture.nativeElement as HTMLElement).querySelector('[data-testid=stored-evaluations] button') as HTMLButtonElement).click();
     await fixture.whenStable();
     const head = ((fixture.nativeElement as HTMLElement).querySelector('.result-head')?.textContent ?? '').replace(/\s+/g, ' ');
-    expect(head).toContain('1000 samples, seed 7');
+    expect(head).toContain('order 3, 1000 samples, seed 7');
     expect(head).not.toMatch(/\bK \d|repeats|\bS \d|\bM \d/);
   });
 });
