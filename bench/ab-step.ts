@@ -16,6 +16,7 @@ import { createBatcher } from '../shared/data/batcher';
 import { parseCorpus } from '../shared/data/corpus-parse';
 import { buildAlphabet, encodeBatch } from '../shared/data/encode';
 import { createRng } from '../shared/data/random';
+import { printInterleaved, timeInterleaved } from './interleaved-cpu';
 
 const { values, positionals } = parseArgs({
   allowPositionals: true,
@@ -68,7 +69,6 @@ async function makeVariant(spec: string): Promise<Variant> {
 
 const variants: Variant[] = [];
 for (const s of positionals) variants.push(await makeVariant(s));
-const cpu: number[][] = variants.map(() => []);
 const kernels: number[] = [];
 const load0 = loadavg();
 for (const [vi, v] of variants.entries()) {
@@ -76,17 +76,6 @@ for (const [vi, v] of variants.entries()) {
   for (let w = 0; w < 2; w++) v.step();
   kernels[vi] = (await tf.profile(() => { v.step(); })).kernels.length;
 }
-for (let r = 0; r < rounds; r++) {
-  const order = r % 2 === 0 ? variants.map((_, i) => i) : variants.map((_, i) => variants.length - 1 - i);
-  for (const vi of order) {
-    const v = variants[vi]!;
-    useKernels(v.kernels);
-    const c0 = process.cpuUsage();
-    for (let s = 0; s < steps; s++) v.step();
-    const c = process.cpuUsage(c0);
-    cpu[vi]!.push((c.user + c.system) / 1000 / steps);
-  }
-}
-const med = (a: number[]) => { const s = [...a].sort((x, y) => x - y); return s[Math.floor(s.length / 2)]!; };
-console.log(`load ${load0.map((x) => x.toFixed(2)).join(' ')} -> ${loadavg().map((x) => x.toFixed(2)).join(' ')}; state ${stateSize}, K ${K}; ${rounds} rounds x ${steps} steps`);
-variants.forEach((v, i) => console.log(`${v.label.padEnd(40)} CPU ms/step median ${med(cpu[i]!).toFixed(1)} (min ${Math.min(...cpu[i]!).toFixed(1)}, max ${Math.max(...cpu[i]!).toFixed(1)})  kernels ${kernels[i]}`));
+const timed = variants.map((v) => ({ label: v.label, step: v.step, before: () => useKernels(v.kernels) }));
+const cpu = timeInterleaved(timed, rounds, steps);
+printInterleaved(timed, cpu, load0, `state ${stateSize}, K ${K}; ${rounds} rounds x ${steps} steps`, (i) => `  kernels ${kernels[i]}`);

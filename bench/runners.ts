@@ -18,7 +18,7 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { GridDto } from '../shared/api/grids';
 import { startRunnerThreads } from '../runner/runner';
-import { benchRunSettings, measureCeiling, type CeilingResult } from './step-ceiling';
+import { benchRunSettings, lowerMedian, measureCeiling, type CeilingResult } from './step-ceiling';
 import { api, json, openLab, runnerToken, runsOf, startHarnessServer, waitFor, type Lab } from '../tests/cross/support/runner-harness';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
@@ -113,16 +113,15 @@ try {
         `${m.mainThreadCpuSeconds !== null ? ` (main thread: server and runner ${m.mainThreadCpuSeconds.toFixed(1)} s)` : ''}\n`);
     }
   }
-  const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor((xs.length - 1) / 2)] as number;
   const r2 = (x: number) => Number(x.toFixed(2));
   /** One figure of every grid, per thread count (rounded to 2 decimals); a null figure (no /proc) is left out. */
   const each = (figure: (m: Measure) => number | null) => {
     const of = (k: 1 | 2) => measures[k].map(figure).filter((x): x is number => x !== null).map(r2);
     return { oneThread: of(1), twoThreads: of(2) };
   };
-  const one = median(measures[1].map((m) => m.wallSeconds));
-  const two = median(measures[2].map((m) => m.wallSeconds));
-  const total = (k: 1 | 2) => median(measures[k].map((m) => m.wallSeconds + m.startupSeconds));
+  const one = lowerMedian(measures[1].map((m) => m.wallSeconds));
+  const two = lowerMedian(measures[2].map((m) => m.wallSeconds));
+  const total = (k: 1 | 2) => lowerMedian(measures[k].map((m) => m.wallSeconds + m.startupSeconds));
   const result = {
     what: `${CELLS}-cell grid of ${STEPS}-step state-space runs (state 8, K 4, batch 32), embedded back-end, runner threads in one process`,
     measuredAt: new Date().toISOString(),

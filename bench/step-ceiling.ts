@@ -33,6 +33,9 @@ export function benchTrainingSet(words = 300): TrainingSet {
   return { alphabet, train, validation: [] };
 }
 
+/** The median of a few rounds (the lower middle one when their number is even), as bench:runners reports its rounds. */
+export const lowerMedian = (xs: readonly number[]): number => [...xs].sort((a, b) => a - b)[Math.floor((xs.length - 1) / 2)] as number;
+
 export interface CeilingResult {
   /** Milliseconds per training step, one figure per round. */
   msPerStepAlone: number[];
@@ -84,10 +87,9 @@ export async function measureCeiling(steps: number, rounds: number): Promise<Cei
   for (let round = 0; round < rounds; round++) {
     for (const n of round % 2 === 0 ? [1, 2] : [2, 1]) (n === 1 ? alone : two).push(await timeThreads(n, steps, round));
   }
-  const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor((xs.length - 1) / 2)] as number;
   const r2 = (x: number) => Number(x.toFixed(2));
-  const a = median(alone);
-  const b = median(two);
+  const a = lowerMedian(alone);
+  const b = lowerMedian(two);
   return {
     msPerStepAlone: alone.map(r2), msPerStepTwoAtOnce: two.map(r2), medianMsPerStepAlone: r2(a), medianMsPerStepTwoAtOnce: r2(b),
     speedUpCeiling: r2((2 * a) / b), stepsTimed: steps, rounds,

@@ -74,17 +74,19 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
   /** Whether claims wait on the server for work; false once a server refused `waitSeconds` (an older version). */
   let waitForWork = true;
   /** A run to train: a claim that waits for work, or (older servers) one that answers at once. */
-  const claimRun = async (): Promise<{ job: RunnerJob | null; waited: boolean }> => {
+  const claimRun = async (): Promise<{ job: RunnerJob | null; waited: boolean; quick: boolean }> => {
     if (waitForWork) {
       try {
-        return { job: await api.claim(undefined, { waitSeconds: CLAIM_WAIT_SECONDS, signal: stopCalls.signal }), waited: true };
+        const began = Date.now();
+        const job = await api.claim(undefined, { waitSeconds: CLAIM_WAIT_SECONDS, signal: stopCalls.signal });
+        return { job, waited: true, quick: Date.now() - began < QUICK_ANSWER_MS };
       } catch (e) {
         if (!(e instanceof RunnerApiError && (e.status === 400 || e.status === 422) && e.code.startsWith('VALIDATION'))) throw e;
         waitForWork = false;
         display.note(`claim: the server does not wait for work (${e.message}); asking every 0.5–5 s instead`);
       }
     }
-    return { job: await api.claim(), waited: false };
+    return { job: await api.claim(), waited: false, quick: false };
   };
   const sleep = (ms: number) => Promise.race([new Promise<void>((r) => setTimeout(r, ms).unref()), stopped]);
 
@@ -216,7 +218,7 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
         let job: RunnerJob | null = null;
         let evaluation: RunnerEvaluationJob | null = null;
         let waited = false;
-        let began = Date.now();
+        let quick = false;
         try {
           // Evaluations first: someone waits at the page for them, and they are short beside a training run.
           // A server without evaluation routes (404) or a passing fault here must not keep runs from training.
@@ -224,10 +226,7 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
             if (isRefusal(e)) throw e;
             return null;
           });
-          if (!evaluation) {
-            began = Date.now();
-            ({ job, waited } = await claimRun());
-          }
+          if (!evaluation) ({ job, waited, quick } = await claimRun());
         } catch (e) {
           if (isRefusal(e)) {
             void giveUp(e);
@@ -248,8 +247,7 @@ export function startRunnerThreads(o: RunnerOptions): RunnerHandle {
         }
         if (!job) {
           // A claim that waited on the server asks again at once (it answered because work came, or its wait ended).
-          const quick = Date.now() - began < QUICK_ANSWER_MS;
-          quickEmpty = waited && quick ? quickEmpty + 1 : 0;
+          quickEmpty = quick ? quickEmpty + 1 : 0;
           if (waited && quickEmpty < 2) {
             if (!quick) idle = IDLE_FIRST_MS;
             continue;

@@ -17,6 +17,7 @@ import { initNodeBackend } from '../../shared/node/tf-node';
 import { loadCorpus } from '../../shared/cli/corpus-file';
 import { buildCorpora } from './science-corpora';
 import { applyRecipeInit, STUDY_START, type ArmSettings } from './recipe-arms';
+import { printInterleaved, timeInterleaved } from '../interleaved-cpu';
 
 const { values, positionals } = parseArgs({ allowPositionals: true, options: { rounds: { type: 'string' }, steps: { type: 'string' } } });
 const rounds = Number(values.rounds ?? 6);
@@ -52,17 +53,6 @@ function makeArm(spec: string): { label: string; step: () => void } {
 
 const arms = positionals.map(makeArm);
 for (const a of arms) for (let w = 0; w < 2; w++) a.step();
-const cpu: number[][] = arms.map(() => []);
 const load0 = loadavg();
-for (let r = 0; r < rounds; r++) {
-  const order = r % 2 === 0 ? arms.map((_, i) => i) : arms.map((_, i) => arms.length - 1 - i);
-  for (const ai of order) {
-    const c0 = process.cpuUsage();
-    for (let s = 0; s < steps; s++) arms[ai]!.step();
-    const c = process.cpuUsage(c0);
-    cpu[ai]!.push((c.user + c.system) / 1000 / steps);
-  }
-}
-const med = (a: number[]) => [...a].sort((x, y) => x - y)[Math.floor(a.length / 2)]!;
-console.log(`load ${load0.map((x) => x.toFixed(2)).join(' ')} -> ${loadavg().map((x) => x.toFixed(2)).join(' ')}; ${rounds} rounds x ${steps} steps`);
-arms.forEach((a, i) => console.log(`${a.label.padEnd(24)} CPU ms/step median ${med(cpu[i]!).toFixed(1)} (min ${Math.min(...cpu[i]!).toFixed(1)}, max ${Math.max(...cpu[i]!).toFixed(1)})`));
+const cpu = timeInterleaved(arms, rounds, steps);
+printInterleaved(arms, cpu, load0, `${rounds} rounds x ${steps} steps`);

@@ -7,10 +7,8 @@
  */
 import { createRunSchema, type CreateRunRequest, type RunSettings } from '../../shared/api/runs';
 import { NEW_RUN_MODEL_DEFAULTS as D, NEW_RUN_TRAINING_DEFAULTS as T } from '../../shared/model/settings-rules';
-import { ActivityRepository } from '../modules/activity/activity.repository';
 import { Corpus } from '../modules/corpora/corpus.entity';
-import { RunRepository } from '../modules/runs/run.repository';
-import { corpusSplit } from '../modules/runs/run-settings';
+import { addNewRun } from '../modules/runs/run.service';
 import type { SeedStep } from './demo-seed';
 
 export const DEMO_RUN_CORPUS = 'Archipelago places';
@@ -46,19 +44,11 @@ export const createDemoRuns: SeedStep = {
     if (!bench || !admin) throw new Error('The demo runs step needs the demo bench and its corpora before it.');
     const corpus = await ctx.em.findOne(Corpus, { bench, name: DEMO_RUN_CORPUS });
     if (!corpus) throw new Error(`The demo runs step needs the demo corpus "${DEMO_RUN_CORPUS}".`);
-    const runs = new RunRepository(ctx.em);
-    const activity = new ActivityRepository(ctx.em);
     const start = ctx.clock.now().getTime();
     DEMO_RUNS.forEach((spec, i) => {
       const body = createRunSchema.parse({ ...spec, corpusId: corpus.id, placement: 'runners' });
       // One millisecond apart, so the runners take them in this order (oldest waiting run first).
-      const at = new Date(start + i);
-      const settings = { ...body.settings, split: corpusSplit(corpus) } as RunSettings;
-      const run = runs.create({
-        bench, corpus, createdBy: admin, name: body.name, family: body.family, settings, alphabet: corpus.alphabet.slice(),
-        status: 'queued', placement: 'runners', at,
-      });
-      activity.record(bench, admin, 'run.created', `${admin.displayName} created the run "${run.name}" on the corpus "${corpus.name}" and sent it to the runners.`, at);
+      addNewRun(ctx.em, { bench, me: admin, corpus, name: body.name, family: body.family, settings: body.settings as RunSettings, placement: 'runners', at: new Date(start + i) });
     });
     await ctx.em.flush();
   },

@@ -59,8 +59,7 @@ export class EvaluationJobService {
       bench, run, checkpoint, checkpointStep: checkpoint.step, createdBy: by, settings, settingsKey: evaluationSettingsKey(settings), createdAt: now, updatedAt: now,
     });
     await this.em.flush();
-    await this.ctx.runQueue.enqueueEvaluations([{ requestId: request.id, runId: run.id, benchId: bench.id }]);
-    this.ctx.runnerWakeup.notify();
+    await this.offerToRunners(request);
     return request;
   }
 
@@ -165,8 +164,7 @@ export class EvaluationJobService {
     request.updatedAt = this.ctx.clock.now();
     await this.em.flush();
     if (status === 'waiting') {
-      await this.ctx.runQueue.enqueueEvaluations([{ requestId: request.id, runId: request.run.id, benchId: request.bench.id }]);
-      this.ctx.runnerWakeup.notify();
+      await this.offerToRunners(request);
     }
   }
 
@@ -187,6 +185,12 @@ export class EvaluationJobService {
     if (gone === 0) throw conflict(ErrorCode.Conflict, 'A runner has just started this evaluation; its figures are stored when it is done.');
     this.em.getUnitOfWork().unsetIdentity(request);
     await this.ctx.runQueue.withdraw(request.id).catch(this.ctx.logError);
+  }
+
+  /** A request that (again) waits for a runner: its queue job (BullMQ), and runner claims that wait for work wake. */
+  private async offerToRunners(request: EvaluationRequest): Promise<void> {
+    await this.ctx.runQueue.enqueueEvaluations([{ requestId: request.id, runId: request.run.id, benchId: request.bench.id }]);
+    this.ctx.runnerWakeup.notify();
   }
 
   /** Requests whose runner stopped answering (lease ran out) wait again, with a reason that says so; returns how many. */

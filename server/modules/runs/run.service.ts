@@ -23,6 +23,24 @@ import { Run } from './run.entity';
 import { RunRepository } from './run.repository';
 import { corpusSplit, FAMILY_LABELS } from './run-settings';
 
+/**
+ * Writes a new run, queued, with its corpus's alphabet and (unless the settings name one) the corpus's split, and
+ * its activity line; the caller flushes. `RunService.create` after its checks, and the demo seed.
+ */
+export function addNewRun(em: EntityManager, input: {
+  bench: Bench; me: User; corpus: Corpus; name: string; family: RunFamily; settings: RunSettings; placement: RunPlacement; at: Date;
+}): Run {
+  const { bench, me, corpus, at } = input;
+  const run = new RunRepository(em).create({
+    bench, corpus, createdBy: me, name: input.name, family: input.family, settings: { ...input.settings, split: input.settings.split ?? corpusSplit(corpus) } as RunSettings,
+    alphabet: corpus.alphabet.slice(), status: 'queued', placement: input.placement, at,
+  });
+  const where = input.placement === 'runners' ? ' and sent it to the runners' : '';
+  new ActivityRepository(em).record(bench, me, 'run.created',
+    `${me.displayName} created the run "${run.name}" (${FAMILY_LABELS[run.family]}) on the corpus "${corpus.name}"${where}.`, at);
+  return run;
+}
+
 export const END_STATUSES: readonly RunStatus[] = ['finished', 'stopped', 'failed'];
 
 /** The answer of a change: the run, and a sentence when the request changed nothing on purpose. */
@@ -99,14 +117,7 @@ export class RunService {
         [input.settings.split ? 'settings.split.shares' : 'corpusId']: 'No word of this corpus falls in the training split; raise the train share or choose another split seed.',
       });
     }
-    const now = this.ctx.clock.now();
-    const run = this.runs.create({
-      bench, corpus, createdBy: me, name: input.name, family: input.family, settings, alphabet: corpus.alphabet.slice(),
-      status: 'queued', placement: input.placement, at: now,
-    });
-    const where = input.placement === 'runners' ? ' and sent it to the runners' : '';
-    new ActivityRepository(this.em).record(bench, me, 'run.created',
-      `${me.displayName} created the run "${run.name}" (${FAMILY_LABELS[run.family]}) on the corpus "${corpus.name}"${where}.`, now);
+    const run = addNewRun(this.em, { bench, me, corpus, name: input.name, family: input.family, settings, placement: input.placement, at: this.ctx.clock.now() });
     await this.em.flush();
     await this.afterChange(run, null);
     return run;
